@@ -1,0 +1,41 @@
+# broadline: the two commands are `make run` (workbench on the built-in demo)
+# and `make test` (every test). Both install what they need first.
+GO      ?= go
+BIN     := bin/broadline
+# Packages without cgo run under the race detector; the app package (fyne,
+# cgo) runs without it, since a race build recompiles the C parts (~4 min).
+PURE    := ./linelists/... ./spectra/... ./opacity/...
+export LANG ?= en_US.UTF-8
+
+.PHONY: all deps build run test bench fmt screenshot clean
+
+all: build
+
+deps:
+	@scripts/deps.sh
+
+build: deps
+	$(GO) build -o $(BIN) ./app
+
+run: build
+	./$(BIN)
+
+test: deps
+	@test -z "$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go'))" || { echo "gofmt needed on:"; gofmt -l .; exit 1; }
+	$(GO) vet ./...
+	$(GO) test -race -timeout 15m $(PURE)
+	$(GO) test -timeout 10m ./app/...
+
+bench: deps
+	$(GO) test -run '^$$' -bench . -benchmem ./...
+
+fmt:
+	gofmt -w $$(git ls-files '*.go')
+
+# screenshot: run the workbench under Xvfb and save shot.png (needs xvfb, xauth, imagemagick).
+screenshot: build
+	@scripts/deps.sh xvfb xauth imagemagick
+	scripts/screenshot.sh $(BIN) shot.png
+
+clean:
+	rm -rf bin shot.png
