@@ -2,13 +2,29 @@
 // table, species in spectroscopic notation, line-list readers, the compact
 // line store and its binary cache, energy levels and partition functions.
 //
+// Loading files (for other packages):
+//
+//	func Load(paths []string, opts Options) (*Store, Report, error)
+//
+// reads and merges line-list files (our text format, any gzip-compressed),
+// through the binary cache when Options.Cache allows it. (Load arrives with
+// the readers; until then build a Store by hand or with a Builder.)
+//
 // Conventions:
 //   - Wavelengths in the store are vacuum wavelengths in ångström, sorted
-//     ascending. Air wavelengths are converted when a file is read.
+//     ascending. Air wavelengths are converted when a file is read, with the
+//     IAU standard formula (Morton 2000, ApJS 130, 403).
 //   - Energies are in eV, measured from the ground level of their own ion.
 //   - A species is an element and an ion stage; stage I is the neutral atom,
 //     stage II singly ionised, and so on. Species.Charge counts from 0.
+//   - Partition functions U(T) = Σ g exp(−E/kT) are summed over the levels a
+//     store knows for a species: a levels file when one was given,
+//     otherwise the distinct levels the line list names plus the ground
+//     level. Both are lower bounds when the level set is incomplete; with no
+//     levels at all U is the ground weight and PartitionFunction says
+//     complete = false. LevelSourceOf tells which case applies.
 //   - This package imports no other package of broadline.
 //   - Bad data returns an error (a *ParseError naming file:line and column for
-//     files); a programming mistake panics with a "linelists: ..." message.
+//     files, wrapping one of the Err* sentinels); a programming mistake
+//     panics with a "linelists: ..." message.
 package linelists

@@ -15,6 +15,14 @@ type Store struct {
 	// Levels lists the distinct levels: the lower levels of the lines, and
 	// any other levels known for the species (upper levels, a levels file).
 	Levels LevelTable
+	// LevelOrigin[i] says where the levels of SpeciesTable[i] came from;
+	// it may be nil (then levels present count as LineLevels).
+	LevelOrigin []LevelSource
+
+	// levelStart[i] is the first level of species i when Levels is grouped
+	// by species (levelStart has len(SpeciesTable)+1 entries); nil
+	// otherwise, and then the level table is scanned.
+	levelStart []uint32
 }
 
 // LevelTable is a struct-of-arrays table of energy levels.
