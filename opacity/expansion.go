@@ -9,6 +9,8 @@ import (
 	"sync"
 	"sync/atomic"
 
+	"gonum.org/v1/gonum/integrate/quad"
+
 	"broadline/linelists"
 	"broadline/spectra"
 )
@@ -244,24 +246,17 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 
 // PlanckMean returns the Planck-mean opacity over the grid at temperature T
 // (K), in cm² g⁻¹: Σ_k κ_k ∫_bin B_λ dλ / Σ_k ∫_bin B_λ dλ. The average is
-// over the grid's range only, not over all wavelengths; the integral of B_λ
-// over each bin is by Simpson's rule on its edges and centre.
+// over the grid's range only, not over all wavelengths; each bin's integral
+// of B_λ is by 8-point Gauss–Legendre quadrature.
 func (x *Expansion) PlanckMean(T float64) float64 {
 	num, den := 0.0, 0.0
+	b := func(lam float64) float64 { return spectra.PlanckLambda(lam, T) }
 	for k, kap := range x.Kappa {
-		a, b := x.Grid.Edges[k], x.Grid.Edges[k+1]
-		w := (b - a) / 6 * (planckShape(a, T) + 4*planckShape(0.5*(a+b), T) + planckShape(b, T))
+		w := quad.Fixed(b, x.Grid.Edges[k], x.Grid.Edges[k+1], 8, nil, 0)
 		num += kap * w
 		den += w
 	}
 	return num / den
-}
-
-// planckShape is B_λ up to a constant factor: λ⁻⁵/(e^{hc/λkT} − 1), λ in Å
-// (scaled by 10⁴ to stay in range).
-func planckShape(lam, T float64) float64 {
-	l := lam * 1e-4
-	return 1 / (l * l * l * l * l * math.Expm1(spectra.HCOverK/(lam*T)))
 }
 
 // Grey returns the opacity averaged over wavelength in [from, to) Å,

@@ -353,3 +353,8 @@ func brent(f func(float64) float64, a, b, fa, fb float64, iter *int) (float64, e
 	}
 	return b, fmt.Errorf("%w after %d evaluations", ErrNotConverged, *iter)
 }
+
+// StorePartition returns the PartitionFunc that sums the levels st knows
+// for each species (linelists.Store.PartitionFunction), falling back to the
+// ground-level weight for species without levels.
+func StorePartition(st *linelists.Store) PartitionFunc { return st.PartitionFunction }

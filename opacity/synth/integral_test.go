@@ -6,6 +6,8 @@ import (
 	"sort"
 	"testing"
 
+	"broadline/spectra"
+
 	"gonum.org/v1/gonum/floats/scalar"
 	"gonum.org/v1/gonum/integrate/quad"
 )
@@ -232,7 +234,7 @@ func TestNoLines(t *testing.T) {
 			t.Fatalf("absorption-only F/F_c = %v, want 1", v)
 		}
 	}
-	if b := planckLambda(10000, 5000) * 1e8; !scalar.EqualWithinRel(b, 7.102e13, 1e-3) {
+	if b := spectra.PlanckLambda(10000, 5000); !scalar.EqualWithinRel(b, 7.102e13, 1e-3) {
 		t.Errorf("B_λ(1 µm, 5000 K) = %g per cm, want 7.102e13", b)
 	}
 }

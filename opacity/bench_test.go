@@ -1,0 +1,161 @@
+package opacity
+
+import (
+	"context"
+	"fmt"
+	"runtime"
+	"sync"
+	"testing"
+	"time"
+
+	"broadline/linelists"
+	"broadline/spectra"
+)
+
+// benchElements are ten r-process-like elements; with stages I–III they
+// give the 30 species of the synthetic benchmark stores.
+var benchElements = []string{"Sr", "Y", "Zr", "Ba", "La", "Ce", "Nd", "Sm", "Eu", "Ca"}
+
+var benchStores sync.Map // n → *linelists.Store
+
+func benchStore(n int) *linelists.Store {
+	if s, ok := benchStores.Load(n); ok {
+		return s.(*linelists.Store)
+	}
+	s := randomStore(n, speciesOf(benchElements...), 2000, 5)
+	benchStores.Store(n, s)
+	return s
+}
+
+func benchPlasma(b *testing.B, T float64) *Plasma {
+	c := mustComp(b, "Sr=0.1,Y=0.1,Zr=0.1,Ba=0.1,La=0.1,Ce=0.1,Nd=0.1,Sm=0.1,Eu=0.1,Ca=0.1")
+	p, err := Solve(c, 1e-13, T, nil)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return p
+}
+
+var benchSizes = []int{1e5, 1e6, 1e7}
+
+// BenchmarkExpansion times the expansion opacity at a new temperature each
+// iteration (plasma solve, level populations, the pass over every line) on a
+// 10-Å grid over 0.3–2.5 µm, using all cores. Metric: lines/s.
+func BenchmarkExpansion(b *testing.B) {
+	for _, n := range benchSizes {
+		b.Run(fmt.Sprintf("lines=%d", n), func(b *testing.B) {
+			st := benchStore(n)
+			g := must(LinearGrid(3000, 25000, 10))
+			workers := runtime.GOMAXPROCS(0)
+			ctx := context.Background()
+			b.ResetTimer()
+			i := 0
+			for b.Loop() {
+				p := benchPlasma(b, 4000+float64(i%50)*20)
+				i++
+				if _, err := ExpansionOpacity(ctx, st, p, spectra.Day, g, workers); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+		})
+	}
+}
+
+// streamFloor reads every per-line array of st once, split over workers the
+// same way, doing the least arithmetic that keeps the loads: the memory
+// streaming floor for a pass over the store.
+func streamFloor(st *linelists.Store, workers int) float64 {
+	n := st.Len()
+	parts := make([]float64, (n+parallelChunk-1)/parallelChunk)
+	_ = parallel(context.Background(), n, workers, func(lo, hi int) {
+		s := 0.0
+		wl, gf, sp, lw := st.Wavelength[lo:hi], st.LogGF[lo:hi], st.Species[lo:hi], st.Lower[lo:hi]
+		for i, x := range wl {
+			s += x + float64(gf[i]) + float64(sp[i]) + float64(lw[i])
+		}
+		parts[lo/parallelChunk] = s
+	})
+	s := 0.0
+	for _, x := range parts {
+		s += x
+	}
+	return s
+}
+
+// BenchmarkStreamFloor is the streaming floor for the same arrays as
+// BenchmarkExpansion. Metric: lines/s.
+func BenchmarkStreamFloor(b *testing.B) {
+	for _, n := range benchSizes {
+		b.Run(fmt.Sprintf("lines=%d", n), func(b *testing.B) {
+			st := benchStore(n)
+			workers := runtime.GOMAXPROCS(0)
+			var sink float64
+			for b.Loop() {
+				sink += streamFloor(st, workers)
+			}
+			if sink == 0 {
+				b.Fatal("no data streamed")
+			}
+			b.ReportMetric(float64(n)*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+		})
+	}
+}
+
+// BenchmarkExpansionOverFloor reports the ratio of the time for an
+// expansion opacity at a new temperature to the time of the streaming floor,
+// for 10⁷ lines (goal ≤ 4). Each iteration runs both, alternately.
+func BenchmarkExpansionOverFloor(b *testing.B) {
+	st := benchStore(1e7)
+	g := must(LinearGrid(3000, 25000, 10))
+	workers := runtime.GOMAXPROCS(0)
+	ctx := context.Background()
+	var tx, tf time.Duration
+	var sink float64
+	i := 0
+	for b.Loop() {
+		t0 := time.Now()
+		sink += streamFloor(st, workers)
+		t1 := time.Now()
+		p := benchPlasma(b, 4000+float64(i%50)*20)
+		i++
+		if _, err := ExpansionOpacity(ctx, st, p, spectra.Day, g, workers); err != nil {
+			b.Fatal(err)
+		}
+		tx += time.Since(t1)
+		tf += t1.Sub(t0)
+	}
+	if sink == 0 {
+		b.Fatal("no data streamed")
+	}
+	b.ReportMetric(tx.Seconds()/tf.Seconds(), "x-floor")
+	b.ReportMetric(tx.Seconds()/float64(b.N)*1e3, "ms-expansion")
+	b.ReportMetric(tf.Seconds()/float64(b.N)*1e3, "ms-floor")
+}
+
+// BenchmarkSolve30 times a new plasma state for 30 elements (goal ≤ 1 ms).
+func BenchmarkSolve30(b *testing.B) {
+	var z []int
+	var w []float64
+	for _, s := range []string{"O", "Na", "Mg", "Si", "Ca", "Ti", "Fe", "Ni", "Zn", "Se", "Rb", "Sr", "Y", "Zr",
+		"Mo", "Ru", "Pd", "Ag", "Sn", "Te", "Cs", "Ba", "La", "Ce", "Pr", "Nd", "Sm", "Eu", "Gd", "Dy"} {
+		e, err := linelists.ElementBySymbol(s)
+		if err != nil {
+			b.Fatal(err)
+		}
+		z = append(z, e.Z)
+		w = append(w, 1)
+	}
+	c, err := NewComposition(z, w)
+	if err != nil || len(c.Z) != 30 {
+		b.Fatal(err)
+	}
+	i := 0
+	for b.Loop() {
+		if _, err := Solve(c, 1e-13, 3000+float64(i%100)*100, nil); err != nil {
+			b.Fatal(err)
+		}
+		i++
+	}
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N)*1e3, "ms/solve")
+}

@@ -1,0 +1,217 @@
+package synth
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+	"sync"
+
+	"broadline/linelists"
+	"broadline/opacity"
+	"broadline/spectra"
+)
+
+// KnockOut is the spectrum with one element's lines removed.
+type KnockOut struct {
+	Z      int
+	Symbol string
+	Result *Result
+}
+
+// KnockOuts returns, for every element of comp in order of Z, the spectrum
+// with that element's lines removed (the plasma is solved once, with every
+// element present, and shared). The elements are computed in parallel on
+// set.Workers goroutines, each integral serially; results are in Z order and
+// do not depend on the number of workers.
+func (m *Model) KnockOuts(ctx context.Context, comp opacity.Composition, ej Ejecta, set Settings) ([]KnockOut, error) {
+	s, err := m.prepare(ctx, comp, ej, set)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]KnockOut, len(comp.Z))
+	errs := make([]error, len(comp.Z))
+	one := set
+	one.Workers = 1
+	run := func(i int) {
+		z := comp.Z[i]
+		t := s.tau(m, func(sp linelists.Species) bool { return int(sp.Z) == z })
+		r, err := m.integrateState(ctx, s, t, ej, one)
+		e, _ := linelists.ElementByZ(z)
+		out[i] = KnockOut{Z: z, Symbol: e.Symbol, Result: r}
+		errs[i] = err
+	}
+	forEach(len(comp.Z), set.Workers, run)
+	for _, err := range errs {
+		if err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
+}
+
+// forEach calls f(0 … n−1) on up to workers goroutines (≤ 1: serially).
+func forEach(n, workers int, f func(i int)) {
+	if workers <= 1 || n <= 1 {
+		for i := range n {
+			f(i)
+		}
+		return
+	}
+	var wg sync.WaitGroup
+	next := make(chan int)
+	for range min(workers, n) {
+		wg.Go(func() {
+			for i := range next {
+				f(i)
+			}
+		})
+	}
+	for i := range n {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+}
+
+// ElementShare is one element's part in the absorption of a window.
+type ElementShare struct {
+	Z      int
+	Symbol string
+	// Absorbed is the absorbed equivalent width (Å) that disappears from the
+	// window when the element's lines are removed: EW(all) − EW(without it),
+	// with EW = ∫ (1 − F/F_c) dλ of the absorption-only approximation.
+	Absorbed float64
+	// Share is Absorbed over the sum of all elements' Absorbed (0 … 1).
+	// Because absorption saturates, the separate Absorbed values need not
+	// add up to the window's total.
+	Share float64
+}
+
+// LineContribution is one line acting in a window.
+type LineContribution struct {
+	Species     linelists.Species
+	Rest        float64 // rest vacuum wavelength, Å
+	LogGF       float64
+	LowerEnergy float64 // eV
+	// TauPhotosphere is the line's Sobolev optical depth at the photosphere.
+	TauPhotosphere float64
+	// Acting is the wavelength at which the line absorbs the photosphere
+	// most directly, λ₀(1 − v_ph/c) (first order), in Å.
+	Acting float64
+}
+
+// Attribution says which elements and lines make the absorption in a
+// wavelength window.
+type Attribution struct {
+	From, To float64 // window, vacuum Å
+	// Absorbed is the window's absorbed equivalent width in Å with every
+	// element present (absorption-only approximation).
+	Absorbed float64
+	Elements []ElementShare     // by decreasing Absorbed
+	Lines    []LineContribution // by decreasing TauPhotosphere, at most the number asked for
+}
+
+// Attribute returns each element's share of the absorbed equivalent width in
+// the observed window [from, to] Å and the nLines lines with the largest
+// Sobolev optical depth at the photosphere whose acting wavelength
+// λ₀(1 − v_ph/c) falls in the window. The shares use the absorption-only
+// approximation, which measures what the lines take out of the photosphere's
+// light without the scattered emission refilling it.
+func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejecta, from, to float64, nLines int, set Settings) (*Attribution, error) {
+	if !(to > from) || from <= 0 {
+		return nil, fmt.Errorf("synth: attribution window [%g, %g] Å is empty", from, to)
+	}
+	if from < m.from || to > m.to {
+		return nil, fmt.Errorf("synth: attribution window [%g, %g] Å lies outside the model's range [%g, %g] Å", from, to, m.from, m.to)
+	}
+	s, err := m.prepare(ctx, comp, ej, set)
+	if err != nil {
+		return nil, err
+	}
+	pv := set
+	pv.Preview = true
+	pv.Workers = 1
+	ew := func(skip func(linelists.Species) bool) (float64, error) {
+		r, err := m.integrateState(ctx, s, s.tau(m, skip), ej, pv)
+		if err != nil {
+			return 0, err
+		}
+		w := 0.0
+		for i, l := range r.Wavelength {
+			if l >= from && l <= to {
+				w += (1 - r.Normalized[i]) * l * m.step
+			}
+		}
+		return w, nil
+	}
+	n := len(comp.Z)
+	ews := make([]float64, n+1)
+	errs := make([]error, n+1)
+	forEach(n+1, set.Workers, func(i int) {
+		if i == n {
+			ews[i], errs[i] = ew(nil)
+			return
+		}
+		z := comp.Z[i]
+		ews[i], errs[i] = ew(func(sp linelists.Species) bool { return int(sp.Z) == z })
+	})
+	for _, err := range errs {
+		if err != nil {
+			return nil, err
+		}
+	}
+	a := &Attribution{From: from, To: to, Absorbed: ews[n]}
+	sum := 0.0
+	for i, z := range comp.Z {
+		e, _ := linelists.ElementByZ(z)
+		d := max(0, ews[n]-ews[i])
+		a.Elements = append(a.Elements, ElementShare{Z: z, Symbol: e.Symbol, Absorbed: d})
+		sum += d
+	}
+	for i := range a.Elements {
+		if sum > 0 {
+			a.Elements[i].Share = a.Elements[i].Absorbed / sum
+		}
+	}
+	sort.SliceStable(a.Elements, func(i, j int) bool { return a.Elements[i].Absorbed > a.Elements[j].Absorbed })
+	a.Lines = m.strongestLines(s, ej, from, to, nLines)
+	return a, nil
+}
+
+// strongestLines returns the nLines lines with the largest τ at the
+// photosphere whose acting wavelength is in [from, to].
+func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int) []LineContribution {
+	if nLines <= 0 {
+		return nil
+	}
+	st := m.store
+	shift := 1 - ej.BetaPh
+	lo := sort.SearchFloat64s(st.Wavelength, from/shift)
+	hi := sort.SearchFloat64s(st.Wavelength, math.Nextafter(to/shift, math.Inf(1)))
+	T := ej.TemperatureAt(ej.BetaPh)
+	sf := s.sf[0]
+	kT := spectra.Boltzmann * T / spectra.ElectronVolt
+	var top []LineContribution
+	for l := lo; l < hi; l++ {
+		f := sf[st.Species[l]]
+		if f == 0 {
+			continue
+		}
+		lam := st.Wavelength[l]
+		e := st.Levels.Energy[st.Lower[l]]
+		tau := s.scale * f * m.gfl[l] * math.Exp(-e/kT) * -math.Expm1(-spectra.HCOverK/(lam*T))
+		if len(top) == nLines && tau <= top[len(top)-1].TauPhotosphere {
+			continue
+		}
+		c := LineContribution{Species: st.SpeciesTable[st.Species[l]], Rest: lam, LogGF: float64(st.LogGF[l]),
+			LowerEnergy: e, TauPhotosphere: tau, Acting: lam * shift}
+		k := sort.Search(len(top), func(i int) bool { return top[i].TauPhotosphere < tau })
+		if len(top) < nLines {
+			top = append(top, LineContribution{})
+		}
+		copy(top[k+1:], top[k:])
+		top[k] = c
+	}
+	return top
+}
