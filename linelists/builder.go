@@ -1,0 +1,371 @@
+package linelists
+
+import (
+	"cmp"
+	"fmt"
+	"math"
+	"slices"
+)
+
+// Tolerances of the level table and of duplicate detection.
+const (
+	// levelQuantum is the energy resolution, in eV, at which two levels of
+	// one species with the same weight count as the same level (1e-5 eV is
+	// 0.08 cm⁻¹, finer than the rounding of most tables).
+	levelQuantum = 1e-5
+	// groundTolerance: a level below this energy (eV, ~0.8 cm⁻¹) is taken
+	// to be the ground level.
+	groundTolerance = 1e-4
+	// Two lines are duplicates when they share species and lower level and
+	// agree in wavelength to dupWavelength Å and in log gf to dupLogGF.
+	dupWavelength = 1e-3
+	dupLogGF      = 1e-3
+)
+
+// Report says what loading did: per file, and for the store built.
+type Report struct {
+	Files []FileReport
+	// Lines is the number of lines in the store.
+	Lines int
+	// Duplicates counts lines dropped as duplicates of another line (same
+	// species and lower level, wavelength within 0.001 Å, log gf within
+	// 0.001); with Builder.KeepDuplicates they are kept and only counted.
+	Duplicates int
+	// Skipped totals the lines left out on purpose over all files.
+	Skipped Skipped
+	// GroundAdded counts species whose level table lacked the ground level,
+	// which was added from the element table.
+	GroundAdded int
+	// Warnings are plain sentences for the user.
+	Warnings []string
+}
+
+// levelKey identifies a level while building: species, energy rounded to
+// levelQuantum, weight.
+type levelKey struct {
+	sp uint16
+	e  int64
+	g  float32
+}
+
+// Builder collects lines and levels and turns them into a Store. The zero
+// value is not ready; use NewBuilder.
+type Builder struct {
+	// KeepDuplicates keeps duplicate lines (they are counted either way).
+	KeepDuplicates bool
+
+	wl  []float64
+	lgf []float32
+	sp  []uint16
+	lo  []uint32
+
+	species  []Species
+	spIdx    map[Species]uint16
+	fromFile []bool // per species: levels came from a levels file
+
+	lvSp  []uint16
+	lvE   []float64
+	lvG   []float32
+	lvIdx map[levelKey]uint32
+}
+
+// NewBuilder returns an empty Builder.
+func NewBuilder() *Builder {
+	return &Builder{spIdx: map[Species]uint16{}, lvIdx: map[levelKey]uint32{}}
+}
+
+// Len returns the number of lines added so far.
+func (b *Builder) Len() int { return len(b.wl) }
+
+func (b *Builder) speciesIndex(sp Species) uint16 {
+	if i, ok := b.spIdx[sp]; ok {
+		return i
+	}
+	i := uint16(len(b.species))
+	b.species = append(b.species, sp)
+	b.fromFile = append(b.fromFile, false)
+	b.spIdx[sp] = i
+	return i
+}
+
+func (b *Builder) level(sp uint16, e float64, g float32) uint32 {
+	k := levelKey{sp, int64(math.Round(e / levelQuantum)), g}
+	if i, ok := b.lvIdx[k]; ok {
+		return i
+	}
+	i := uint32(len(b.lvE))
+	b.lvSp = append(b.lvSp, sp)
+	b.lvE = append(b.lvE, e)
+	b.lvG = append(b.lvG, g)
+	b.lvIdx[k] = i
+	return i
+}
+
+// Add adds one line (already checked: finite positive wavelength, finite
+// log gf, energies ≥ 0). Its lower level, and its upper level when known,
+// join the level table.
+func (b *Builder) Add(l Line) {
+	if l.Species.Z < 1 || l.Species.Z > 100 || l.Species.Charge > l.Species.Z {
+		panic(fmt.Sprintf("linelists: Builder.Add: invalid species %+v", l.Species))
+	}
+	s := b.speciesIndex(l.Species)
+	lo := b.level(s, l.LowerEnergy, l.LowerG)
+	if l.HasUpper {
+		b.level(s, l.UpperEnergy, l.UpperG)
+	}
+	b.wl = append(b.wl, l.Wavelength)
+	b.lgf = append(b.lgf, float32(l.LogGF))
+	b.sp = append(b.sp, s)
+	b.lo = append(b.lo, lo)
+}
+
+// builderMark records the sizes of a Builder, to undo a failed read.
+type builderMark struct{ lines, species, levels int }
+
+func (b *Builder) mark() builderMark {
+	return builderMark{len(b.wl), len(b.species), len(b.lvE)}
+}
+
+func (b *Builder) rollback(m builderMark) {
+	b.wl, b.lgf, b.sp, b.lo = b.wl[:m.lines], b.lgf[:m.lines], b.sp[:m.lines], b.lo[:m.lines]
+	for i := m.levels; i < len(b.lvE); i++ {
+		delete(b.lvIdx, levelKey{b.lvSp[i], int64(math.Round(b.lvE[i] / levelQuantum)), b.lvG[i]})
+	}
+	b.lvSp, b.lvE, b.lvG = b.lvSp[:m.levels], b.lvE[:m.levels], b.lvG[:m.levels]
+	for i := m.species; i < len(b.species); i++ {
+		delete(b.spIdx, b.species[i])
+	}
+	b.species, b.fromFile = b.species[:m.species], b.fromFile[:m.species]
+}
+
+// Build sorts and indexes what was added and returns the Store. The
+// Builder hands its data over and is empty afterwards. The level table is
+// grouped by species (in Z, charge order) and sorted by energy; species
+// whose levels lack a ground level get one from the element table (when
+// its weight is known).
+func (b *Builder) Build() (*Store, Report) {
+	var rep Report
+	// Ground levels.
+	hasGround := make([]bool, len(b.species))
+	hasLevels := make([]bool, len(b.species))
+	for i, e := range b.lvE {
+		hasLevels[b.lvSp[i]] = true
+		if e < groundTolerance {
+			hasGround[b.lvSp[i]] = true
+		}
+	}
+	for i, sp := range b.species {
+		if hasLevels[i] && !hasGround[i] {
+			if g, known := GroundWeight(sp); known {
+				b.level(uint16(i), 0, float32(g))
+				rep.GroundAdded++
+			} else {
+				rep.Warnings = append(rep.Warnings, fmt.Sprintf("%v: no ground level in the data and its weight is unknown; the partition function misses it", sp))
+			}
+		}
+	}
+	// Species in (Z, charge) order.
+	spOrder := make([]uint16, len(b.species))
+	for i := range spOrder {
+		spOrder[i] = uint16(i)
+	}
+	slices.SortFunc(spOrder, func(x, y uint16) int {
+		a, c := b.species[x], b.species[y]
+		return cmp.Or(cmp.Compare(a.Z, c.Z), cmp.Compare(a.Charge, c.Charge))
+	})
+	newSp := make([]uint16, len(b.species))
+	st := &Store{SpeciesTable: make([]Species, len(b.species)), LevelOrigin: make([]LevelSource, len(b.species))}
+	for n, old := range spOrder {
+		newSp[old] = uint16(n)
+		st.SpeciesTable[n] = b.species[old]
+		switch {
+		case b.fromFile[old]:
+			st.LevelOrigin[n] = FileLevels
+		case hasLevels[old]:
+			st.LevelOrigin[n] = LineLevels
+		}
+	}
+	// Levels grouped by species, by energy, then weight.
+	nl := len(b.lvE)
+	lvOrder := make([]uint32, nl)
+	for i := range lvOrder {
+		lvOrder[i] = uint32(i)
+	}
+	slices.SortFunc(lvOrder, func(x, y uint32) int {
+		return cmp.Or(cmp.Compare(newSp[b.lvSp[x]], newSp[b.lvSp[y]]), cmp.Compare(b.lvE[x], b.lvE[y]), cmp.Compare(b.lvG[x], b.lvG[y]))
+	})
+	newLv := make([]uint32, nl)
+	st.Levels = LevelTable{Species: make([]uint16, nl), Energy: make([]float64, nl), G: make([]float32, nl)}
+	for n, old := range lvOrder {
+		newLv[old] = uint32(n)
+		st.Levels.Species[n] = newSp[b.lvSp[old]]
+		st.Levels.Energy[n] = b.lvE[old]
+		st.Levels.G[n] = b.lvG[old]
+	}
+	st.levelStart = groupStarts(st.Levels.Species, len(st.SpeciesTable))
+	// Lines: remap, then sort by wavelength (ties by species, level, gf).
+	n := len(b.wl)
+	for i := 0; i < n; i++ {
+		b.sp[i] = newSp[b.sp[i]]
+		b.lo[i] = newLv[b.lo[i]]
+	}
+	less := func(i, j int) int {
+		return cmp.Or(cmp.Compare(b.wl[i], b.wl[j]), cmp.Compare(b.sp[i], b.sp[j]), cmp.Compare(b.lo[i], b.lo[j]), cmp.Compare(b.lgf[i], b.lgf[j]))
+	}
+	sorted := true
+	for i := 1; i < n; i++ {
+		if less(i-1, i) > 0 {
+			sorted = false
+			break
+		}
+	}
+	if sorted {
+		st.Wavelength, st.LogGF, st.Species, st.Lower = b.wl, b.lgf, b.sp, b.lo
+	} else {
+		perm := make([]uint32, n)
+		for i := range perm {
+			perm[i] = uint32(i)
+		}
+		slices.SortFunc(perm, func(x, y uint32) int { return less(int(x), int(y)) })
+		st.Wavelength = make([]float64, n)
+		st.LogGF = make([]float32, n)
+		st.Species = make([]uint16, n)
+		st.Lower = make([]uint32, n)
+		for k, i := range perm {
+			st.Wavelength[k], st.LogGF[k], st.Species[k], st.Lower[k] = b.wl[i], b.lgf[i], b.sp[i], b.lo[i]
+		}
+	}
+	rep.Duplicates = st.dedup(b.KeepDuplicates)
+	rep.Lines = st.Len()
+	*b = *NewBuilder()
+	return st, rep
+}
+
+// groupStarts returns, for a species column grouped in order, the first
+// index of each of n species (n+1 entries), or nil if it is not grouped.
+func groupStarts(sp []uint16, n int) []uint32 {
+	starts := make([]uint32, n+1)
+	k := 0
+	for s := 0; s < n; s++ {
+		starts[s] = uint32(k)
+		for k < len(sp) && int(sp[k]) == s {
+			k++
+		}
+	}
+	if k != len(sp) {
+		return nil
+	}
+	starts[n] = uint32(k)
+	return starts
+}
+
+// dedup counts (and unless keep, removes) duplicate lines in a sorted store.
+func (s *Store) dedup(keep bool) int {
+	n := s.Len()
+	dups := 0
+	w := 0
+	for i := 0; i < n; i++ {
+		dup := false
+		for k := w - 1; k >= 0 && s.Wavelength[i]-s.Wavelength[k] <= dupWavelength; k-- {
+			if s.Species[k] == s.Species[i] && s.Lower[k] == s.Lower[i] && math.Abs(float64(s.LogGF[k]-s.LogGF[i])) <= dupLogGF {
+				dup = true
+				break
+			}
+		}
+		if dup {
+			dups++
+			if !keep {
+				continue
+			}
+		}
+		s.Wavelength[w], s.LogGF[w], s.Species[w], s.Lower[w] = s.Wavelength[i], s.LogGF[i], s.Species[i], s.Lower[i]
+		w++
+	}
+	s.Wavelength, s.LogGF, s.Species, s.Lower = s.Wavelength[:w], s.LogGF[:w], s.Species[:w], s.Lower[:w]
+	return dups
+}
+
+// AddStore adds every line and level of s to b (used by Merge).
+func (b *Builder) AddStore(s *Store) {
+	lvMap := make([]uint32, len(s.Levels.Energy))
+	spMap := make([]uint16, len(s.SpeciesTable))
+	for i, sp := range s.SpeciesTable {
+		spMap[i] = b.speciesIndex(sp)
+		if i < len(s.LevelOrigin) && s.LevelOrigin[i] == FileLevels {
+			b.fromFile[spMap[i]] = true
+		}
+	}
+	for i := range s.Levels.Energy {
+		lvMap[i] = b.level(spMap[s.Levels.Species[i]], s.Levels.Energy[i], s.Levels.G[i])
+	}
+	for i := range s.Wavelength {
+		b.wl = append(b.wl, s.Wavelength[i])
+		b.lgf = append(b.lgf, s.LogGF[i])
+		b.sp = append(b.sp, spMap[s.Species[i]])
+		b.lo = append(b.lo, lvMap[s.Lower[i]])
+	}
+}
+
+// Merge combines stores into one: species and levels are matched, lines
+// sorted, and lines that appear in more than one store counted as
+// duplicates and kept once.
+func Merge(stores ...*Store) (*Store, Report) {
+	b := NewBuilder()
+	for _, s := range stores {
+		b.AddStore(s)
+	}
+	return b.Build()
+}
+
+// Filter returns a store holding only the lines that f selects, and the
+// counts of those left out. The species and level tables are shared with
+// s (levels without lines still count in partition functions).
+func (s *Store) Filter(f Filter) (*Store, Skipped) {
+	var sk Skipped
+	want := speciesSet(f.Species)
+	var wantIdx []bool
+	if want != nil {
+		wantIdx = make([]bool, len(s.SpeciesTable))
+		for i, sp := range s.SpeciesTable {
+			wantIdx[i] = want[sp]
+		}
+	}
+	lo, hi := 0, s.Len()
+	if f.MinWavelength > 0 {
+		lo, _ = slices.BinarySearch(s.Wavelength, f.MinWavelength)
+	}
+	if f.MaxWavelength > 0 {
+		hi = lo + sort64Upper(s.Wavelength[lo:], f.MaxWavelength)
+	}
+	sk.Wavelength = lo + (s.Len() - hi)
+	out := &Store{SpeciesTable: s.SpeciesTable, Levels: s.Levels, LevelOrigin: s.LevelOrigin, levelStart: s.levelStart}
+	for i := lo; i < hi; i++ {
+		switch {
+		case wantIdx != nil && !wantIdx[s.Species[i]]:
+			sk.Species++
+			continue
+		case f.HasMinLogGF && float64(s.LogGF[i]) < f.MinLogGF:
+			sk.Strength++
+			continue
+		}
+		out.Wavelength = append(out.Wavelength, s.Wavelength[i])
+		out.LogGF = append(out.LogGF, s.LogGF[i])
+		out.Species = append(out.Species, s.Species[i])
+		out.Lower = append(out.Lower, s.Lower[i])
+	}
+	return out, sk
+}
+
+// sort64Upper returns the number of leading elements ≤ x in sorted a.
+func sort64Upper(a []float64, x float64) int {
+	i, j := 0, len(a)
+	for i < j {
+		h := int(uint(i+j) >> 1)
+		if a[h] <= x {
+			i = h + 1
+		} else {
+			j = h
+		}
+	}
+	return i
+}

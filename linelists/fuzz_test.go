@@ -1,0 +1,72 @@
+package linelists
+
+import (
+	"bytes"
+	"compress/gzip"
+	"errors"
+	"math"
+	"testing"
+)
+
+// FuzzRead feeds arbitrary bytes to the reader of our format and to the
+// import path: no input may panic, an error must be a *ParseError, and a
+// store that comes back must keep its invariants. The seed corpus is in
+// testdata/fuzz/FuzzRead.
+func FuzzRead(f *testing.F) {
+	f.Add([]byte(sample), false)
+	f.Add([]byte("wavelength_nm, species, gf, lower_energy_eV, lower_g\n500.0, Nd II, 0.1, 0.5, 8\n"), false)
+	f.Add([]byte("5000 -1 0 2.5\n6000 -2 1 3\n"), true)
+	var gz bytes.Buffer
+	zw := gzip.NewWriter(&gz)
+	zw.Write([]byte(sample))
+	zw.Close()
+	f.Add(gz.Bytes(), false)
+	cols, err := ParseColumnMap("wavelength=1:A,log_gf=2,lower_energy=3:cm-1,lower_j=4")
+	if err != nil {
+		f.Fatal(err)
+	}
+	f.Fuzz(func(t *testing.T, data []byte, imp bool) {
+		opts := ReadOptions{Name: "fuzz"}
+		if imp {
+			opts.Import = &Import{Columns: cols, Species: Species{Z: 60, Charge: 1}}
+		}
+		s, _, err := Read(bytes.NewReader(data), opts)
+		if err != nil {
+			var pe *ParseError
+			if !errors.As(err, &pe) {
+				t.Fatalf("error %T is not a *ParseError: %v", err, err)
+			}
+			return
+		}
+		checkStore(t, s)
+	})
+}
+
+// checkStore asserts the invariants every Store from this package keeps.
+func checkStore(t *testing.T, s *Store) {
+	t.Helper()
+	n := s.Len()
+	if len(s.LogGF) != n || len(s.Species) != n || len(s.Lower) != n {
+		t.Fatal("per-line slices differ in length")
+	}
+	for i := 0; i < n; i++ {
+		w := s.Wavelength[i]
+		if !(w > 0) || math.IsInf(w, 0) {
+			t.Fatalf("line %d: wavelength %v", i, w)
+		}
+		if i > 0 && w < s.Wavelength[i-1] {
+			t.Fatalf("not sorted at %d", i)
+		}
+		if int(s.Species[i]) >= len(s.SpeciesTable) || int(s.Lower[i]) >= len(s.Levels.Energy) {
+			t.Fatalf("line %d: index out of range", i)
+		}
+		if s.Levels.Species[s.Lower[i]] != s.Species[i] {
+			t.Fatalf("line %d: lower level of another species", i)
+		}
+	}
+	for i, e := range s.Levels.Energy {
+		if !(e >= 0) || math.IsInf(e, 0) {
+			t.Fatalf("level %d: energy %v", i, e)
+		}
+	}
+}
