@@ -56,6 +56,9 @@ type Options struct {
 const (
 	DefaultCoreRays     = 16
 	DefaultEnvelopeRays = 32
+	// DefaultPreviewRays is the default number of rays of the absorption-only
+	// preview, which trades accuracy for speed.
+	DefaultPreviewRays = 8
 	// DefaultNodes is the default number of velocity nodes of an envelope.
 	DefaultNodes = 16
 )
@@ -210,6 +213,9 @@ func Profile(ctx context.Context, tau *Tau, from, to int, opt Options, workers i
 // no emission peaks; it is an approximation for quick previews, not a
 // spectrum model.
 func AbsorptionProfile(ctx context.Context, tau *Tau, from, to int, opt Options, workers int) ([]float64, error) {
+	if opt.CoreRays <= 0 {
+		opt.CoreRays = DefaultPreviewRays
+	}
 	return integrate(ctx, tau, from, to, opt.withDefaults(), workers, true)
 }
 
@@ -236,12 +242,12 @@ func integrate(ctx context.Context, tau *Tau, from, to int, opt Options, workers
 
 	// a[s*N+i] = 1 − exp(−τ) at node s; interpolated linearly in r.
 	n := tau.Grid.N
-	a := make([]float64, len(tau.Values))
+	a := make([]float32, len(tau.Values))
 	for i, t := range tau.Values {
 		if t < 0 || math.IsNaN(t) {
 			return nil, fmt.Errorf("synth: optical depth %g of bin %d at node %d is negative or NaN", t, i%n, i/n)
 		}
-		a[i] = -math.Expm1(-t)
+		a[i] = float32(-math.Expm1(-t))
 	}
 
 	out := make([]float64, to-from)
@@ -315,7 +321,7 @@ func span(j0, m, k, n int) (int, int) {
 
 // scatter applies the resonance points pts in order: at each,
 // I ← I + (S − I)(1 − e^{−τ}) with S = W I_ph (I_ph = 1).
-func scatter(I []float64, j0 int, pts []point, a []float64, n int) {
+func scatter(I []float64, j0 int, pts []point, a []float32, n int) {
 	m := len(I)
 	for _, p := range pts {
 		lo, hi := span(j0, m, p.k, n)
@@ -330,14 +336,14 @@ func scatter(I []float64, j0 int, pts []point, a []float64, n int) {
 		a0 = a0[:len(seg)]
 		f, w, c := p.f, p.w, p.frac
 		for x := range seg {
-			t := c * (a0[x] + f*(a1[x]-a0[x]))
+			t := c * (float64(a0[x]) + f*float64(a1[x]-a0[x]))
 			seg[x] += (w - seg[x]) * t
 		}
 	}
 }
 
 // absorb applies I ← I e^{−τ} for the points pts.
-func absorb(I []float64, j0 int, pts []point, a []float64, n int) {
+func absorb(I []float64, j0 int, pts []point, a []float32, n int) {
 	m := len(I)
 	for _, p := range pts {
 		lo, hi := span(j0, m, p.k, n)
@@ -352,7 +358,7 @@ func absorb(I []float64, j0 int, pts []point, a []float64, n int) {
 		a0 = a0[:len(seg)]
 		f, c := p.f, p.frac
 		for x := range seg {
-			seg[x] *= 1 - c*(a0[x]+f*(a1[x]-a0[x]))
+			seg[x] *= 1 - c*(float64(a0[x])+f*float64(a1[x]-a0[x]))
 		}
 	}
 }

@@ -1,0 +1,100 @@
+package synth
+
+import (
+	"context"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"testing"
+
+	"broadline/linelists"
+	"broadline/opacity"
+	"broadline/spectra"
+)
+
+// benchStore returns an invented store of n lines over 2500–50000 Å in 16
+// species (Sr, Y, Zr, Ba, La, Ce, Nd, Sm II and III), 400 levels each, with
+// log gf spread so that most lines are weak.
+func benchStore(b *testing.B, n int) *linelists.Store {
+	b.Helper()
+	names := []string{"Sr II", "Y II", "Zr II", "Ba II", "La II", "Ce II", "Nd II", "Sm II",
+		"Sr III", "Y III", "Zr III", "Ba III", "La III", "Ce III", "Nd III", "Sm III"}
+	rng := rand.New(rand.NewPCG(2, 3))
+	bl := linelists.NewBuilder()
+	levels := make([][]float64, len(names))
+	for s := range names {
+		levels[s] = make([]float64, 400)
+		for k := range levels[s] {
+			levels[s][k] = 6 * rng.Float64() * rng.Float64()
+		}
+		levels[s][0] = 0
+	}
+	for range n {
+		s := rng.IntN(len(names))
+		bl.Add(linelists.Line{
+			Wavelength:  2500 * math.Exp(rng.Float64()*math.Log(20)),
+			LogGF:       -5 + 5*math.Pow(rng.Float64(), 3),
+			Species:     linelists.MustSpecies(names[s]),
+			LowerEnergy: levels[s][rng.IntN(400)],
+			LowerG:      float32(2*rng.IntN(6) + 2),
+		})
+	}
+	st, _ := bl.Build()
+	return st
+}
+
+// BenchmarkMillionLines measures a spectrum over 0.4–2.5 µm at R = 3000
+// (smoothing included) from a 1-million-line store after a change of
+// composition and photosphere velocity: issue goal ≤ 100 ms for the preview,
+// ≤ 1 s for the full synthesis, on 2 cores.
+func BenchmarkMillionLines(b *testing.B) {
+	st := benchStore(b, 1_000_000)
+	m, err := NewModel(st, 4000, 25000, 0)
+	if err != nil {
+		b.Fatal(err)
+	}
+	comps := []string{"Sr=0.3,Y=0.1,Zr=0.2,Ba=0.1,La=0.05,Ce=0.05,Nd=0.15,Sm=0.05",
+		"Sr=0.2,Y=0.1,Zr=0.2,Ba=0.1,La=0.1,Ce=0.05,Nd=0.2,Sm=0.05"}
+	ej := Ejecta{Time: 1.5 * spectra.Day, Mass: 0.04 * spectra.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
+		BetaMax: 0.35, DensityIndex: 3, Temperature: 5000}
+	ctx := context.Background()
+	for _, c := range []struct {
+		name    string
+		preview bool
+	}{{"preview", true}, {"full", false}} {
+		b.Run(c.name, func(b *testing.B) {
+			set := Settings{Preview: c.preview, Workers: runtime.GOMAXPROCS(0)}
+			comp, _ := opacity.ParseComposition(comps[0])
+			if _, err := m.Spectrum(ctx, comp, ej, set); err != nil { // warm the caches
+				b.Fatal(err)
+			}
+			b.ResetTimer()
+			for i := 0; b.Loop(); i++ {
+				comp, _ := opacity.ParseComposition(comps[i%2])
+				e := ej
+				e.BetaPh = 0.2 + 0.01*float64(i%3)
+				r, err := m.Spectrum(ctx, comp, e, set)
+				if err != nil {
+					b.Fatal(err)
+				}
+				if _, _, err := r.Observe(3000, nil); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Milliseconds())/float64(b.N), "ms/spectrum")
+			b.ReportMetric(float64(st.Len())*float64(b.N)/b.Elapsed().Seconds(), "lines/s")
+		})
+	}
+	b.Run("new-temperature", func(b *testing.B) {
+		set := Settings{Workers: runtime.GOMAXPROCS(0)}
+		comp, _ := opacity.ParseComposition(comps[0])
+		for i := 0; b.Loop(); i++ {
+			e := ej
+			e.Temperature = 4000 + float64(i)
+			if _, err := m.Spectrum(ctx, comp, e, set); err != nil {
+				b.Fatal(err)
+			}
+		}
+		b.ReportMetric(float64(b.Elapsed().Milliseconds())/float64(b.N), "ms/spectrum")
+	})
+}
