@@ -16,6 +16,9 @@ const (
 	// groundTolerance: a level below this energy (eV, ~0.8 cm⁻¹) is taken
 	// to be the ground level.
 	groundTolerance = 1e-4
+	// levelMatchTolerance: a lower level named by a line matches a level of
+	// the levels file within this energy (eV, ~8 cm⁻¹) and the same g.
+	levelMatchTolerance = 1e-3
 	// Two lines are duplicates when they share species and lower level and
 	// agree in wavelength to dupWavelength Å and in log gf to dupLogGF.
 	dupWavelength = 1e-3
@@ -36,6 +39,9 @@ type Report struct {
 	// GroundAdded counts species whose level table lacked the ground level,
 	// which was added from the element table.
 	GroundAdded int
+	// LevelsMatched counts levels named by lines that were matched to a
+	// level of a levels file.
+	LevelsMatched int
 	// Warnings are plain sentences for the user.
 	Warnings []string
 }
@@ -63,10 +69,11 @@ type Builder struct {
 	spIdx    map[Species]uint16
 	fromFile []bool // per species: levels came from a levels file
 
-	lvSp  []uint16
-	lvE   []float64
-	lvG   []float32
-	lvIdx map[levelKey]uint32
+	lvSp   []uint16
+	lvE    []float64
+	lvG    []float32
+	lvFile []bool // level came from a levels file
+	lvIdx  map[levelKey]uint32
 }
 
 // NewBuilder returns an empty Builder.
@@ -97,8 +104,24 @@ func (b *Builder) level(sp uint16, e float64, g float32) uint32 {
 	b.lvSp = append(b.lvSp, sp)
 	b.lvE = append(b.lvE, e)
 	b.lvG = append(b.lvG, g)
+	b.lvFile = append(b.lvFile, false)
 	b.lvIdx[k] = i
 	return i
+}
+
+// AddLevel adds a level from a levels file: energy in eV above the ion's
+// ground level, weight g = 2J+1 (> 0). The species' partition function is
+// then summed over the file's levels (see LevelSource FileLevels); lower
+// levels that lines name are matched to the file's levels when they agree
+// to 1e-3 eV with the same weight, and kept as extra levels otherwise.
+func (b *Builder) AddLevel(sp Species, energy float64, g float32) {
+	if sp.Z < 1 || sp.Z > 100 || sp.Charge > sp.Z {
+		panic(fmt.Sprintf("linelists: Builder.AddLevel: invalid species %+v", sp))
+	}
+	s := b.speciesIndex(sp)
+	b.fromFile[s] = true
+	i := b.level(s, energy, g)
+	b.lvFile[i] = true
 }
 
 // Add adds one line (already checked: finite positive wavelength, finite
@@ -131,7 +154,7 @@ func (b *Builder) rollback(m builderMark) {
 	for i := m.levels; i < len(b.lvE); i++ {
 		delete(b.lvIdx, levelKey{b.lvSp[i], int64(math.Round(b.lvE[i] / levelQuantum)), b.lvG[i]})
 	}
-	b.lvSp, b.lvE, b.lvG = b.lvSp[:m.levels], b.lvE[:m.levels], b.lvG[:m.levels]
+	b.lvSp, b.lvE, b.lvG, b.lvFile = b.lvSp[:m.levels], b.lvE[:m.levels], b.lvG[:m.levels], b.lvFile[:m.levels]
 	for i := m.species; i < len(b.species); i++ {
 		delete(b.spIdx, b.species[i])
 	}
@@ -164,6 +187,17 @@ func (b *Builder) Build() (*Store, Report) {
 			}
 		}
 	}
+	// Line levels of species with a levels file: match them to file levels.
+	remap, dropped, unmatched := b.matchFileLevels()
+	if unmatched > 0 {
+		rep.Warnings = append(rep.Warnings, fmt.Sprintf("%d lower levels named by lines are not in the levels file (no level within %g eV with the same g); they are kept as extra levels", unmatched, levelMatchTolerance))
+	}
+	rep.LevelsMatched = 0
+	for _, d := range dropped {
+		if d {
+			rep.LevelsMatched++
+		}
+	}
 	// Species in (Z, charge) order.
 	spOrder := make([]uint16, len(b.species))
 	for i := range spOrder {
@@ -187,20 +221,28 @@ func (b *Builder) Build() (*Store, Report) {
 	}
 	// Levels grouped by species, by energy, then weight.
 	nl := len(b.lvE)
-	lvOrder := make([]uint32, nl)
-	for i := range lvOrder {
-		lvOrder[i] = uint32(i)
+	lvOrder := make([]uint32, 0, nl)
+	for i := 0; i < nl; i++ {
+		if !dropped[i] {
+			lvOrder = append(lvOrder, uint32(i))
+		}
 	}
 	slices.SortFunc(lvOrder, func(x, y uint32) int {
 		return cmp.Or(cmp.Compare(newSp[b.lvSp[x]], newSp[b.lvSp[y]]), cmp.Compare(b.lvE[x], b.lvE[y]), cmp.Compare(b.lvG[x], b.lvG[y]))
 	})
 	newLv := make([]uint32, nl)
-	st.Levels = LevelTable{Species: make([]uint16, nl), Energy: make([]float64, nl), G: make([]float32, nl)}
+	kept := len(lvOrder)
+	st.Levels = LevelTable{Species: make([]uint16, kept), Energy: make([]float64, kept), G: make([]float32, kept)}
 	for n, old := range lvOrder {
 		newLv[old] = uint32(n)
 		st.Levels.Species[n] = newSp[b.lvSp[old]]
 		st.Levels.Energy[n] = b.lvE[old]
 		st.Levels.G[n] = b.lvG[old]
+	}
+	for old := range newLv {
+		if dropped[old] {
+			newLv[old] = newLv[remap[old]]
+		}
 	}
 	st.levelStart = groupStarts(st.Levels.Species, len(st.SpeciesTable))
 	// Lines: remap, then sort by wavelength (ties by species, level, gf).
@@ -368,4 +410,56 @@ func sort64Upper(a []float64, x float64) int {
 		}
 	}
 	return i
+}
+
+// matchFileLevels maps each non-file level of a species that has a levels
+// file to the nearest file level within levelMatchTolerance with the same
+// weight (any weight when the line's is unknown). It returns the map, which
+// levels are dropped (mapped), and how many stay unmatched.
+func (b *Builder) matchFileLevels() (remap []uint32, dropped []bool, unmatched int) {
+	nl := len(b.lvE)
+	remap = make([]uint32, nl)
+	dropped = make([]bool, nl)
+	any := false
+	for _, f := range b.fromFile {
+		any = any || f
+	}
+	if !any {
+		return remap, dropped, 0
+	}
+	// File levels per species, sorted by energy.
+	bySp := map[uint16][]uint32{}
+	for i := 0; i < nl; i++ {
+		if b.lvFile[i] {
+			bySp[b.lvSp[i]] = append(bySp[b.lvSp[i]], uint32(i))
+		}
+	}
+	for _, l := range bySp {
+		slices.SortFunc(l, func(x, y uint32) int { return cmp.Compare(b.lvE[x], b.lvE[y]) })
+	}
+	for i := 0; i < nl; i++ {
+		if b.lvFile[i] || !b.fromFile[b.lvSp[i]] {
+			continue
+		}
+		fl := bySp[b.lvSp[i]]
+		e := b.lvE[i]
+		k, _ := slices.BinarySearchFunc(fl, e, func(x uint32, t float64) int { return cmp.Compare(b.lvE[x], t) })
+		best, bestD := -1, levelMatchTolerance
+		for j := k - 1; j >= 0 && e-b.lvE[fl[j]] <= levelMatchTolerance; j-- {
+			if d := e - b.lvE[fl[j]]; d <= bestD && (b.lvG[i] == 0 || b.lvG[fl[j]] == b.lvG[i]) {
+				best, bestD = int(fl[j]), d
+			}
+		}
+		for j := k; j < len(fl) && b.lvE[fl[j]]-e <= levelMatchTolerance; j++ {
+			if d := b.lvE[fl[j]] - e; d <= bestD && (b.lvG[i] == 0 || b.lvG[fl[j]] == b.lvG[i]) {
+				best, bestD = int(fl[j]), d
+			}
+		}
+		if best >= 0 {
+			remap[i], dropped[i] = uint32(best), true
+		} else {
+			unmatched++
+		}
+	}
+	return remap, dropped, unmatched
 }

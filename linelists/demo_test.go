@@ -1,0 +1,169 @@
+package linelists
+
+import (
+	"bytes"
+	"compress/gzip"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/floats/scalar"
+	"gonum.org/v1/gonum/stat"
+)
+
+const demoDir = "../app/demo/lines"
+
+// TestDemoFilesCurrent checks that the committed demo files are what the
+// generator makes now (run "go run ./tools/demolines" after changing it),
+// that each says it is invented, and that they read back.
+func TestDemoFilesCurrent(t *testing.T) {
+	if testing.Short() {
+		t.Skip("reads the demo files")
+	}
+	for _, el := range DemoPlan() {
+		s, err := Demo(el, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var want bytes.Buffer
+		if err := Write(&want, s, WriteOptions{Comments: DemoComments(el, 1), Note: func(i int) string { return RealNote(s, i) }}); err != nil {
+			t.Fatal(err)
+		}
+		path := filepath.Join(demoDir, el.File+".txt.gz")
+		got := gunzip(t, path)
+		// The committed file has extra "# key: value" lines; compare the
+		// data rows.
+		if a, b := dataRows(got), dataRows(want.Bytes()); a != b {
+			t.Errorf("%s differs from the generator's output; run go run ./tools/demolines", path)
+		}
+		if !bytes.Contains(got[:400], []byte("INVENTED FOR DEMONSTRATION - NOT ATOMIC DATA")) {
+			t.Errorf("%s: header does not say it is invented", path)
+		}
+		lv := gunzip(t, filepath.Join(demoDir, el.File+"_levels.txt.gz"))
+		if !bytes.HasPrefix(lv, []byte("# INVENTED FOR DEMONSTRATION - NOT ATOMIC DATA")) {
+			t.Errorf("%s levels: header does not say it is invented", el.File)
+		}
+		b := NewBuilder()
+		if _, err := b.Read(bytes.NewReader(got), ReadOptions{Name: path}); err != nil {
+			t.Fatal(err)
+		}
+		if _, err := b.ReadLevels(bytes.NewReader(lv), LevelsOptions{Name: el.File + "_levels"}); err != nil {
+			t.Fatal(err)
+		}
+		r, rep := b.Build()
+		checkStore(t, r)
+		if r.Len() != s.Len() || len(r.Levels.Energy) != len(s.Levels.Energy) || len(rep.Warnings) != 0 {
+			t.Errorf("%s read back: %d lines %d levels (%v), generated %d and %d", el.File, r.Len(), len(r.Levels.Energy), rep.Warnings, s.Len(), len(s.Levels.Energy))
+		}
+		for _, sp := range r.SpeciesTable {
+			if r.LevelSourceOf(sp) != FileLevels {
+				t.Errorf("%v: levels not from the levels file", sp)
+			}
+		}
+	}
+}
+
+func gunzip(t *testing.T, path string) []byte {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	zr, err := gzip.NewReader(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := io.ReadAll(zr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+func dataRows(b []byte) string {
+	var out strings.Builder
+	for _, l := range strings.Split(string(b), "\n") {
+		if !strings.HasPrefix(l, "# ") || strings.HasPrefix(l, "# real line") {
+			out.WriteString(l + "\n")
+		}
+	}
+	return out.String()
+}
+
+// TestDemoStatistics checks the generator does what its comment says: the
+// same seed gives the same lines, wavelengths stay in 3500–25000 Å, each
+// wavelength is hc/ΔE of its levels, and log gf has mean ≈ −2.3 and σ ≈ 1.2.
+func TestDemoStatistics(t *testing.T) {
+	el := DemoPlan()[5] // Nd
+	if el.Symbol != "Nd" {
+		t.Fatalf("plan order changed: %v", el.Symbol)
+	}
+	a, err := Demo(el, 7)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := Demo(el, 7)
+	c, _ := Demo(el, 8)
+	if a.Len() != b.Len() || a.Wavelength[100] != b.Wavelength[100] || a.LogGF[999] != b.LogGF[999] {
+		t.Error("same seed, different lists")
+	}
+	if a.Wavelength[100] == c.Wavelength[100] {
+		t.Error("different seeds, same list")
+	}
+	lgf := make([]float64, a.Len())
+	for i := range lgf {
+		lgf[i] = float64(a.LogGF[i])
+		if w := a.Wavelength[i]; w < 3500 || w > 25000 {
+			t.Fatalf("line %d at %v Å", i, w)
+		}
+	}
+	mean, sd := stat.MeanStdDev(lgf, nil)
+	// The clipping at −7 and +0.9 shifts the moments a little.
+	if !scalar.EqualWithinAbs(mean, -2.3, 0.05) || !scalar.EqualWithinAbs(sd, 1.2, 0.05) {
+		t.Errorf("log gf mean %v sd %v, want ≈ −2.3 and ≈ 1.2", mean, sd)
+	}
+	// Each line's lower level is below an upper level at E_low + hc/λ:
+	// check a sample against the level table.
+	for i := 0; i < a.Len(); i += 997 {
+		eUp := a.Levels.Energy[a.Lower[i]] + hcEVAngstrom/a.Wavelength[i]
+		found := false
+		for l, e := range a.Levels.Energy {
+			if a.Levels.Species[l] == a.Species[i] && math.Abs(e-eUp) < 1e-4 {
+				found = true
+				break
+			}
+		}
+		if !found {
+			t.Errorf("line %d: no upper level at %.4f eV", i, eUp)
+		}
+	}
+	if u, complete := a.PartitionFunction(MustSpecies("Nd II"), 5000); !complete || u < 8 {
+		t.Errorf("Nd II demo U = %v complete %v", u, complete)
+	}
+}
+
+// TestDemoRealLines checks that the real lines carry the REFERENCES.md
+// values and are marked where they are written.
+func TestDemoRealLines(t *testing.T) {
+	for _, rl := range RealDemoLines() {
+		// λ = 1/(E_up − E_low) in vacuum, from the REFERENCES.md levels;
+		// wavelengths there are given to 0.01 Å and levels to 0.01 cm⁻¹
+		// (0.012 Å at 1.1 µm), hence 0.02 Å.
+		if w := 1e8 / (rl.UpperCm - rl.LowerCm); !scalar.EqualWithinAbs(w, rl.Wavelength, 0.02) {
+			t.Errorf("%s %v: levels give %.3f Å", rl.Species, rl.Wavelength, w)
+		}
+	}
+	s, err := Demo(DemoPlan()[0], 1) // Ca
+	if err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	Write(&buf, s, WriteOptions{Note: func(i int) string { return RealNote(s, i) }})
+	if n := strings.Count(buf.String(), "# real line"); n != 5 {
+		t.Errorf("%d real-line marks in the Ca file, want 5", n)
+	}
+}
