@@ -1,0 +1,273 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"runtime"
+	"strconv"
+	"strings"
+
+	"broadline/linelists"
+	"broadline/opacity"
+	"broadline/opacity/synth"
+	"broadline/spectra"
+)
+
+func init() {
+	c := &command{
+		name: "model",
+		args: "--lines FILE… --mass-fractions LIST --days D --photosphere-velocity V --outer-velocity V " +
+			"--temperature K --ejecta-mass M [--inner-velocity V] [--density-index N] [--from-um A --to-um B] " +
+			"[--resolving-power R] [--without ELEMENT…]",
+		summary: "synthesise a photospheric spectrum (CSV wavelength_um,flux,normalized_flux)",
+	}
+	c.run = func(args []string, stdout, stderr io.Writer) error { return runModel(c, args, stdout, stderr) }
+	register(c)
+}
+
+// listFlag collects a repeatable flag whose values may also be
+// comma-separated.
+type listFlag []string
+
+func (l *listFlag) String() string { return strings.Join(*l, ",") }
+
+func (l *listFlag) Set(s string) error {
+	for _, v := range strings.Split(s, ",") {
+		if v = strings.TrimSpace(v); v != "" {
+			*l = append(*l, v)
+		}
+	}
+	return nil
+}
+
+// velocityFlag is a velocity given as a fraction of c ("0.2c") or in km/s
+// ("60000km/s"); it holds v/c, or NaN when not set.
+type velocityFlag struct{ beta float64 }
+
+func (v *velocityFlag) String() string {
+	if v == nil || math.IsNaN(v.beta) {
+		return ""
+	}
+	return strconv.FormatFloat(v.beta, 'g', -1, 64) + "c"
+}
+
+func (v *velocityFlag) Set(s string) error {
+	b, err := parseVelocity(s)
+	if err != nil {
+		return err
+	}
+	v.beta = b
+	return nil
+}
+
+// parseVelocity reads "0.2c" or "60000km/s" (spaces allowed before the unit)
+// and returns v/c, which must lie in [0, 1).
+func parseVelocity(s string) (float64, error) {
+	t := strings.ToLower(strings.TrimSpace(s))
+	var num string
+	var scale float64
+	switch {
+	case strings.HasSuffix(t, "km/s"):
+		num, scale = strings.TrimSuffix(t, "km/s"), 1/spectra.SpeedOfLightKmS
+	case strings.HasSuffix(t, "c"):
+		num, scale = strings.TrimSuffix(t, "c"), 1
+	default:
+		return 0, fmt.Errorf("velocity %q needs a unit: a fraction of c like 0.2c, or km/s like 60000km/s", s)
+	}
+	x, err := strconv.ParseFloat(strings.TrimSpace(num), 64)
+	if err != nil {
+		return 0, fmt.Errorf("velocity %q: %q is not a number (want e.g. 0.2c or 60000km/s)", s, strings.TrimSpace(num))
+	}
+	b := x * scale
+	if !(b >= 0) || b >= 1 {
+		return 0, fmt.Errorf("velocity %q is %g c; want 0 ≤ v < c", s, b)
+	}
+	return b, nil
+}
+
+func runModel(c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet(c, stderr)
+	var lines, levels, without listFlag
+	fs.Var(&lines, "lines", "line-list `FILE` (repeatable, or comma-separated)")
+	fs.Var(&levels, "levels", "levels `FILE` for partition functions (optional, repeatable)")
+	fracs := fs.String("mass-fractions", "", "element mass fractions, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\" (normalised)")
+	days := fs.Float64("days", math.NaN(), "time since explosion in days")
+	vph := &velocityFlag{math.NaN()}
+	vout := &velocityFlag{math.NaN()}
+	vin := &velocityFlag{0}
+	fs.Var(vph, "photosphere-velocity", "photosphere velocity, e.g. 0.2c or 60000km/s")
+	fs.Var(vout, "outer-velocity", "outer edge of the ejecta, e.g. 0.35c")
+	fs.Var(vin, "inner-velocity", "inner edge of the density law (default 0; needed for --density-index ≥ 3)")
+	temp := fs.Float64("temperature", math.NaN(), "photosphere blackbody temperature in K")
+	mass := fs.Float64("ejecta-mass", math.NaN(), "total ejecta mass in solar masses")
+	index := fs.Float64("density-index", 0, "n in ρ ∝ v^−n (0: uniform)")
+	from := fs.Float64("from-um", 0.4, "start of the wavelength range, µm (vacuum)")
+	to := fs.Float64("to-um", 2.5, "end of the wavelength range, µm (vacuum)")
+	rp := fs.Float64("resolving-power", 0, "smooth to resolving power R (0: the model grid's own resolution)")
+	fs.Var(&without, "without", "remove this element's lines (knock-out; repeatable or comma-separated)")
+	diluted := fs.Bool("diluted", false, "use the diluted temperature T(r) = W(r)^(1/4) T_ph instead of a uniform one")
+	preview := fs.Bool("preview", false, "absorption-only approximation (fast preview, no scattered emission)")
+	doppler := fs.String("doppler", "first-order", "Doppler formula: first-order or relativistic")
+	dist := fs.Float64("distance-mpc", 0, "distance in Mpc: flux at the observer (default: flux at the photosphere)")
+	pos, err := fs.parse(args)
+	if err != nil {
+		return err
+	}
+	if len(pos) > 0 {
+		return usagef("unexpected argument %q (line lists go after --lines)", pos[0])
+	}
+
+	// Check every value before reading anything.
+	if len(lines) == 0 {
+		return usagef("--lines: at least one line-list file is needed")
+	}
+	if *fracs == "" {
+		return usagef("--mass-fractions is required, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\"")
+	}
+	comp, err := opacity.ParseComposition(*fracs)
+	if err != nil {
+		return usagef("--mass-fractions: %v", err)
+	}
+	need := func(name string, v float64, what string) error {
+		if math.IsNaN(v) {
+			return usagef("--%s is required (%s)", name, what)
+		}
+		if !(v > 0) || math.IsInf(v, 0) {
+			return usagef("--%s %g: want a positive, finite %s", name, v, what)
+		}
+		return nil
+	}
+	for _, chk := range []struct {
+		name, what string
+		v          float64
+	}{
+		{"days", "time in days", *days},
+		{"photosphere-velocity", "velocity, e.g. 0.2c", vph.beta},
+		{"outer-velocity", "velocity, e.g. 0.35c", vout.beta},
+		{"temperature", "temperature in K", *temp},
+		{"ejecta-mass", "mass in solar masses", *mass},
+	} {
+		if err := need(chk.name, chk.v, chk.what); err != nil {
+			return err
+		}
+	}
+	if !(*from > 0) || !(*to > *from) || math.IsInf(*to, 0) {
+		return usagef("--from-um %g --to-um %g: want 0 < from < to", *from, *to)
+	}
+	if (*to)/(*from) > 1e3 {
+		return usagef("--from-um %g --to-um %g: range wider than a factor 1000", *from, *to)
+	}
+	if !(*rp >= 0) || math.IsInf(*rp, 0) {
+		return usagef("--resolving-power %g: want ≥ 0 (0: no smoothing)", *rp)
+	}
+	if !(*dist >= 0) || math.IsInf(*dist, 0) {
+		return usagef("--distance-mpc %g: want > 0 (or 0 for the flux at the photosphere)", *dist)
+	}
+	var dop synth.Doppler
+	switch *doppler {
+	case "first-order":
+		dop = synth.FirstOrder
+	case "relativistic":
+		dop = synth.Relativistic
+	default:
+		return usagef("--doppler %q: want first-order or relativistic", *doppler)
+	}
+	var out []int
+	for _, w := range without {
+		e, err := linelists.ElementBySymbol(w)
+		if err != nil {
+			return usagef("--without %q: %v", w, err)
+		}
+		out = append(out, e.Z)
+	}
+	ej := synth.Ejecta{
+		Time: *days * spectra.Day, Mass: *mass * spectra.SolarMass,
+		BetaIn: vin.beta, BetaPh: vph.beta, BetaMax: vout.beta,
+		DensityIndex: *index, Temperature: *temp, Diluted: *diluted,
+	}
+	if err := ej.Validate(); err != nil {
+		return usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
+	}
+
+	// Read the line lists, keeping only lines that can act on the range.
+	fromA, toA := *from*1e4, *to*1e4
+	g := vout.beta
+	b := linelists.NewBuilder()
+	filter := linelists.Filter{MinWavelength: fromA * math.Sqrt(1-g*g) / (1 + g), MaxWavelength: toA / (1 - g)}
+	skipped := 0
+	for _, name := range lines {
+		rep, err := readFile(name, func(r io.Reader) (int, error) {
+			fr, err := b.Read(r, linelists.ReadOptions{Name: name, Filter: filter})
+			return fr.Skipped.Total(), err
+		})
+		if err != nil {
+			return usagef("--lines: %v", err)
+		}
+		skipped += rep
+	}
+	for _, name := range levels {
+		if _, err := readFile(name, func(r io.Reader) (int, error) {
+			_, err := b.ReadLevels(r, linelists.LevelsOptions{Name: name})
+			return 0, err
+		}); err != nil {
+			return usagef("--levels: %v", err)
+		}
+	}
+	st, rep := b.Build()
+
+	m, err := synth.NewModel(st, fromA, toA, 0)
+	if err != nil {
+		return usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
+	}
+	set := synth.Settings{Preview: *preview, Without: out, Workers: runtime.GOMAXPROCS(0),
+		Options: synth.Options{Doppler: dop}}
+	res, err := m.Spectrum(context.Background(), comp, ej, set)
+	if err != nil {
+		return err
+	}
+	if *dist > 0 {
+		res.Flux = res.AtDistance(*dist * spectra.Megaparsec)
+	}
+	flux, norm, err := res.Observe(*rp, nil)
+	if err != nil {
+		return err
+	}
+
+	var buf bytes.Buffer
+	buf.WriteString("wavelength_um,flux,normalized_flux\n")
+	for i, l := range res.Wavelength {
+		buf.WriteString(strconv.FormatFloat(l*1e-4, 'f', 6, 64))
+		buf.WriteByte(',')
+		buf.WriteString(strconv.FormatFloat(flux[i], 'g', 7, 64))
+		buf.WriteByte(',')
+		buf.WriteString(strconv.FormatFloat(norm[i], 'f', 6, 64))
+		buf.WriteByte('\n')
+	}
+	if _, err := stdout.Write(buf.Bytes()); err != nil {
+		return err
+	}
+	fmt.Fprintf(stderr, "model: %d lines in %d species (%d lines outside %.4g–%.4g Å skipped, they cannot act on the range)",
+		rep.Lines, len(st.SpeciesTable), skipped, filter.MinWavelength, filter.MaxWavelength)
+	if *preview {
+		fmt.Fprint(stderr, "; ABSORPTION-ONLY PREVIEW, not the full model")
+	}
+	fmt.Fprintln(stderr)
+	for _, w := range rep.Warnings {
+		fmt.Fprintln(stderr, "model: warning:", w)
+	}
+	return nil
+}
+
+// readFile opens name and passes it to read.
+func readFile(name string, read func(io.Reader) (int, error)) (int, error) {
+	f, err := os.Open(name)
+	if err != nil {
+		return 0, err
+	}
+	defer f.Close()
+	return read(f)
+}
