@@ -81,6 +81,10 @@ type FileReport struct {
 	Added   int        // lines added
 	Skipped Skipped    // lines left out on purpose
 	Cached  bool       // loaded from the binary cache
+	// Duplicates and GroundAdded as in Report, for this file alone (set
+	// by Load).
+	Duplicates  int
+	GroundAdded int
 }
 
 // Line is one transition as a reader produces it, before it goes into a

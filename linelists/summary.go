@@ -83,6 +83,10 @@ func WriteSummary(w io.Writer, s *Store, rep Report) error {
 				f.Skipped.Wavelength, f.Skipped.Species, f.Skipped.Strength)
 		}
 	}
+	if rep.Skipped.Total() > 0 {
+		fmt.Fprintf(&b, "left out by the filter: %d outside the wavelength range, %d other species, %d below the log gf cut\n",
+			rep.Skipped.Wavelength, rep.Skipped.Species, rep.Skipped.Strength)
+	}
 	sum := s.Summary()
 	fmt.Fprintf(&b, "%d lines, %d species, %d levels", sum.Lines, len(sum.Species), sum.Levels)
 	if sum.Lines > 0 {

@@ -1,0 +1,200 @@
+package linelists
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+)
+
+// CacheMode says whether Load uses the binary cache.
+type CacheMode uint8
+
+// Cache modes. The zero value uses the cache.
+const (
+	CacheUse   CacheMode = iota // read a valid cache, (re)write a missing or bad one
+	CacheOff                    // neither read nor write a cache
+	CacheWrite                  // always parse and rewrite the cache
+)
+
+// Options controls Load. The zero value reads our format, vacuum unless
+// a file says otherwise, through the cache next to each file.
+type Options struct {
+	// Import, when not nil, reads every file as an arbitrary table with
+	// this column mapping.
+	Import *Import
+	// Medium of the wavelengths when a file does not say.
+	Medium Medium
+	// Filter selects lines after loading; the others are counted.
+	Filter Filter
+	// Levels are levels files (see Builder.ReadLevels).
+	Levels []string
+	// KeepDuplicates keeps duplicate lines (they are counted either way).
+	KeepDuplicates bool
+	// Cache selects the cache mode.
+	Cache CacheMode
+	// CacheDir, when set, holds the caches; otherwise a cache is written
+	// next to its file (name + ".blcache"), or in the user cache directory
+	// when that directory is not writable.
+	CacheDir string
+}
+
+// cacheSuffix is appended to a line-list file's name for its cache.
+const cacheSuffix = ".blcache"
+
+// Load reads and merges line-list files (gzip or not) and optional levels
+// files into one Store, using the binary cache for each line-list file.
+// Lines left out by opts.Filter are counted in the report.
+func Load(paths []string, opts Options) (*Store, Report, error) {
+	var rep Report
+	if len(paths) == 0 {
+		return nil, rep, fmt.Errorf("linelists: Load: no files")
+	}
+	oh := optionsHash(&opts)
+	stores := make([]*Store, 0, len(paths))
+	for _, p := range paths {
+		s, fr, warn, err := loadOne(p, &opts, oh)
+		if err != nil {
+			return nil, Report{}, err
+		}
+		if warn != "" {
+			rep.Warnings = append(rep.Warnings, warn)
+		}
+		stores = append(stores, s)
+		rep.Files = append(rep.Files, fr)
+		rep.Duplicates += fr.Duplicates
+		rep.GroundAdded += fr.GroundAdded
+	}
+	var s *Store
+	if len(stores) == 1 && len(opts.Levels) == 0 {
+		s = stores[0]
+	} else {
+		b := NewBuilder()
+		b.KeepDuplicates = opts.KeepDuplicates
+		for _, st := range stores {
+			b.AddStore(st)
+		}
+		for _, lp := range opts.Levels {
+			f, err := os.Open(lp)
+			if err != nil {
+				return nil, Report{}, fmt.Errorf("linelists: levels file: %w", err)
+			}
+			_, err = b.ReadLevels(f, LevelsOptions{Name: lp})
+			f.Close()
+			if err != nil {
+				return nil, Report{}, err
+			}
+		}
+		var mrep Report
+		s, mrep = b.Build()
+		rep.Duplicates += mrep.Duplicates
+		rep.GroundAdded += mrep.GroundAdded
+		rep.LevelsMatched += mrep.LevelsMatched
+		rep.Warnings = append(rep.Warnings, mrep.Warnings...)
+	}
+	if opts.Filter.active() {
+		var sk Skipped
+		s, sk = s.Filter(opts.Filter)
+		rep.Skipped.add(sk)
+	}
+	rep.Lines = s.Len()
+	return s, rep, nil
+}
+
+// loadOne reads one file through its cache.
+func loadOne(path string, opts *Options, oh uint64) (*Store, FileReport, string, error) {
+	if opts.Cache == CacheOff {
+		s, fr, err := parseFile(path, opts)
+		return s, fr, "", err
+	}
+	id, err := identify(path, oh)
+	if err != nil {
+		return nil, FileReport{}, "", fmt.Errorf("linelists: %w", err)
+	}
+	cp := cachePath(path, opts.CacheDir)
+	warn := ""
+	if opts.Cache == CacheUse {
+		s, fr, err := readCache(cp, id)
+		if err == nil {
+			fr.Name = path
+			return s, fr, "", nil
+		}
+		if !errors.Is(err, os.ErrNotExist) {
+			warn = fmt.Sprintf("cache %s not used (%v); rebuilt from the source", cp, errors.Unwrap(err))
+		}
+	}
+	s, fr, err := parseFile(path, opts)
+	if err != nil {
+		return nil, fr, "", err
+	}
+	if err := writeCache(cp, s, fr, id); err != nil {
+		alt := userCachePath(path)
+		if opts.CacheDir == "" && alt != "" {
+			if err2 := os.MkdirAll(filepath.Dir(alt), 0o755); err2 == nil {
+				err = writeCache(alt, s, fr, id)
+			}
+		}
+		if err != nil {
+			warn = fmt.Sprintf("could not write the cache for %s: %v", path, err)
+		}
+	}
+	return s, fr, warn, nil
+}
+
+// parseFile reads one file without the cache.
+func parseFile(path string, opts *Options) (*Store, FileReport, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, FileReport{}, fmt.Errorf("linelists: %w", err)
+	}
+	defer f.Close()
+	b := NewBuilder()
+	b.KeepDuplicates = opts.KeepDuplicates
+	fr, err := b.Read(f, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium})
+	if err != nil {
+		return nil, fr, err
+	}
+	s, rep := b.Build()
+	fr.Duplicates = rep.Duplicates
+	fr.GroundAdded = rep.GroundAdded
+	return s, fr, nil
+}
+
+// cachePath picks where the cache of path lives: in dir when given, else
+// next to the file, unless a valid cache already sits in the user cache
+// directory and none next to the file.
+func cachePath(path, dir string) string {
+	if dir != "" {
+		return filepath.Join(dir, cacheName(path))
+	}
+	next := path + cacheSuffix
+	if _, err := os.Stat(next); err == nil {
+		return next
+	}
+	if alt := userCachePath(path); alt != "" {
+		if _, err := os.Stat(alt); err == nil {
+			return alt
+		}
+	}
+	return next
+}
+
+// cacheName is a file name for the cache of path in a shared directory.
+func cacheName(path string) string {
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		abs = path
+	}
+	h := sha256.Sum256([]byte(abs))
+	return filepath.Base(path) + "-" + hex.EncodeToString(h[:6]) + cacheSuffix
+}
+
+func userCachePath(path string) string {
+	d, err := os.UserCacheDir()
+	if err != nil {
+		return ""
+	}
+	return filepath.Join(d, "broadline", "lines", cacheName(path))
+}
