@@ -284,10 +284,10 @@ func splitNameUnit(n string) (name, unit string) {
 			return strings.ToLower(strings.TrimSpace(n[:i])), strings.TrimSpace(n[i+1 : j])
 		}
 	}
-	l := strings.ToLower(n)
+	l := strings.ToLower(n) // may differ from n in length (invalid UTF-8)
 	for _, sep := range []string{"/", "_", " "} {
 		if i := strings.LastIndex(l, sep); i > 0 {
-			suf := n[i+1:]
+			suf := l[i+1:]
 			if _, err := ParseWaveUnit(suf); err == nil && suf != "" {
 				return l[:i], suf
 			}
