@@ -46,12 +46,23 @@ type Report struct {
 	Warnings []string
 }
 
-// levelKey identifies a level while building: species, energy rounded to
-// levelQuantum, weight.
-type levelKey struct {
-	sp uint16
-	e  int64
-	g  float32
+// levelKey identifies a level while building: species (16 bits), weight
+// (14 bits) and energy rounded to levelQuantum (34 bits, up to 1.7e5 eV)
+// packed in one word, which makes the map lookup per line cheap.
+type levelKey uint64
+
+// Bounds that levelKey needs; readers reject values beyond them.
+const (
+	maxLevelEnergy = 1e5 // eV
+	maxLevelG      = 1e4
+)
+
+func makeLevelKey(sp uint16, e float64, g float32) levelKey {
+	if !(e >= 0 && e <= maxLevelEnergy) || !(g >= 0 && g <= maxLevelG) {
+		panic(fmt.Sprintf("linelists: level out of range: E = %v eV, g = %v", e, g))
+	}
+	q := uint64(math.Round(e / levelQuantum))
+	return levelKey(uint64(sp)<<48 | uint64(math.Round(float64(g)))<<34 | q)
 }
 
 // Builder collects lines and levels and turns them into a Store. The zero
@@ -96,7 +107,7 @@ func (b *Builder) speciesIndex(sp Species) uint16 {
 }
 
 func (b *Builder) level(sp uint16, e float64, g float32) uint32 {
-	k := levelKey{sp, int64(math.Round(e / levelQuantum)), g}
+	k := makeLevelKey(sp, e, g)
 	if i, ok := b.lvIdx[k]; ok {
 		return i
 	}
@@ -152,7 +163,7 @@ func (b *Builder) mark() builderMark {
 func (b *Builder) rollback(m builderMark) {
 	b.wl, b.lgf, b.sp, b.lo = b.wl[:m.lines], b.lgf[:m.lines], b.sp[:m.lines], b.lo[:m.lines]
 	for i := m.levels; i < len(b.lvE); i++ {
-		delete(b.lvIdx, levelKey{b.lvSp[i], int64(math.Round(b.lvE[i] / levelQuantum)), b.lvG[i]})
+		delete(b.lvIdx, makeLevelKey(b.lvSp[i], b.lvE[i], b.lvG[i]))
 	}
 	b.lvSp, b.lvE, b.lvG, b.lvFile = b.lvSp[:m.levels], b.lvE[:m.levels], b.lvG[:m.levels], b.lvFile[:m.levels]
 	for i := m.species; i < len(b.species); i++ {
@@ -161,7 +172,8 @@ func (b *Builder) rollback(m builderMark) {
 	b.species, b.fromFile = b.species[:m.species], b.fromFile[:m.species]
 }
 
-// Build sorts and indexes what was added and returns the Store. The
+// Build sorts and indexes what was added and returns the Store. Lines are
+// sorted by wavelength, ties by species, lower level and log gf. The
 // Builder hands its data over and is empty afterwards. The level table is
 // grouped by species (in Z, charge order) and sorted by energy; species
 // whose levels lack a ground level get one from the element table (when
@@ -251,12 +263,9 @@ func (b *Builder) Build() (*Store, Report) {
 		b.sp[i] = newSp[b.sp[i]]
 		b.lo[i] = newLv[b.lo[i]]
 	}
-	less := func(i, j int) int {
-		return cmp.Or(cmp.Compare(b.wl[i], b.wl[j]), cmp.Compare(b.sp[i], b.sp[j]), cmp.Compare(b.lo[i], b.lo[j]), cmp.Compare(b.lgf[i], b.lgf[j]))
-	}
 	sorted := true
 	for i := 1; i < n; i++ {
-		if less(i-1, i) > 0 {
+		if b.wl[i] < b.wl[i-1] || b.wl[i] == b.wl[i-1] && cmp.Or(cmp.Compare(b.sp[i-1], b.sp[i]), cmp.Compare(b.lo[i-1], b.lo[i]), cmp.Compare(b.lgf[i-1], b.lgf[i])) > 0 {
 			sorted = false
 			break
 		}
@@ -264,11 +273,23 @@ func (b *Builder) Build() (*Store, Report) {
 	if sorted {
 		st.Wavelength, st.LogGF, st.Species, st.Lower = b.wl, b.lgf, b.sp, b.lo
 	} else {
-		perm := make([]uint32, n)
-		for i := range perm {
-			perm[i] = uint32(i)
+		// Radix sort on wavelength, then runs of equal wavelength ordered
+		// by species, lower level and log gf, so that the order does not
+		// depend on the order lines were added in.
+		perm := radixSortFloat64(b.wl)
+		tie := func(x, y uint32) int {
+			return cmp.Or(cmp.Compare(b.sp[x], b.sp[y]), cmp.Compare(b.lo[x], b.lo[y]), cmp.Compare(b.lgf[x], b.lgf[y]))
 		}
-		slices.SortFunc(perm, func(x, y uint32) int { return less(int(x), int(y)) })
+		for i := 0; i < n; {
+			j := i + 1
+			for j < n && b.wl[perm[j]] == b.wl[perm[i]] {
+				j++
+			}
+			if j-i > 1 {
+				slices.SortFunc(perm[i:j], tie)
+			}
+			i = j
+		}
 		st.Wavelength = make([]float64, n)
 		st.LogGF = make([]float32, n)
 		st.Species = make([]uint16, n)

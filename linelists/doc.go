@@ -6,9 +6,12 @@
 //
 //	func Load(paths []string, opts Options) (*Store, Report, error)
 //
-// reads and merges line-list files (our text format, any gzip-compressed),
-// through the binary cache when Options.Cache allows it. (Load arrives with
-// the readers; until then build a Store by hand or with a Builder.)
+// reads and merges line-list files (our text format, or any table through
+// Options.Import; gzip is recognised), adds levels files (Options.Levels),
+// applies Options.Filter, and uses a binary cache per file (next to it as
+// NAME.blcache, or in Options.CacheDir / the user cache directory). The
+// zero Options is the usual choice. Report says what was read, skipped,
+// deduplicated and taken from the cache; WriteSummary prints it.
 //
 // Conventions:
 //   - Wavelengths in the store are vacuum wavelengths in ångström, sorted

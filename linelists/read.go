@@ -610,8 +610,8 @@ func parseEnergy(b []byte, u Unit, what string) (float64, error) {
 		return 0, numErr(b, "a "+what)
 	}
 	e *= u.factor()
-	if !(e >= 0) || !isFinite(e) {
-		return 0, fmt.Errorf("%w: %s %q: want a finite number ≥ 0", ErrRange, what, b)
+	if !(e >= 0) || !(e <= maxLevelEnergy) {
+		return 0, fmt.Errorf("%w: %s %q: want a finite number ≥ 0 (and below %g eV)", ErrRange, what, b, maxLevelEnergy)
 	}
 	return e, nil
 }
