@@ -401,7 +401,7 @@ func (s *Store) Filter(f Filter) (*Store, Skipped) {
 		hi = lo + sort64Upper(s.Wavelength[lo:], f.MaxWavelength)
 	}
 	sk.Wavelength = lo + (s.Len() - hi)
-	out := &Store{SpeciesTable: s.SpeciesTable, Levels: s.Levels, LevelOrigin: s.LevelOrigin, levelStart: s.levelStart}
+	out := &Store{SpeciesTable: s.SpeciesTable, Levels: s.Levels, LevelOrigin: s.LevelOrigin, levelStart: s.levelStart, Overrides: s.Overrides}
 	for i := lo; i < hi; i++ {
 		switch {
 		case wantIdx != nil && !wantIdx[s.Species[i]]:

@@ -208,3 +208,10 @@ func FuzzCacheMutation(f *testing.F) {
 		checkStore(t, got)
 	})
 }
+
+func writeFile(t *testing.T, p, content string) {
+	t.Helper()
+	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}

@@ -31,6 +31,9 @@ type Options struct {
 	Filter Filter
 	// Levels are levels files (see Builder.ReadLevels).
 	Levels []string
+	// Overrides is a file of ionisation energies and ground weights that
+	// replace the element table's (see ReadOverrides); "" for none.
+	Overrides string
 	// KeepDuplicates keeps duplicate lines (they are counted either way).
 	KeepDuplicates bool
 	// Cache selects the cache mode.
@@ -93,6 +96,18 @@ func Load(paths []string, opts Options) (*Store, Report, error) {
 		rep.GroundAdded += mrep.GroundAdded
 		rep.LevelsMatched += mrep.LevelsMatched
 		rep.Warnings = append(rep.Warnings, mrep.Warnings...)
+	}
+	if opts.Overrides != "" {
+		f, err := os.Open(opts.Overrides)
+		if err != nil {
+			return nil, Report{}, fmt.Errorf("linelists: overrides file: %w", err)
+		}
+		o, err := ReadOverrides(f, opts.Overrides)
+		f.Close()
+		if err != nil {
+			return nil, Report{}, err
+		}
+		s.Overrides = o
 	}
 	if opts.Filter.active() {
 		var sk Skipped

@@ -86,8 +86,8 @@ func (s *Store) levelCount(i int) int {
 
 // PartitionFunction returns U(T) = Σ g exp(−E/kT) over the levels the store
 // knows for sp (levels with an unknown weight, g = 0, add nothing). When it
-// knows none, U is the ground weight from the element table (1 if that is
-// unknown too) and complete is false: the true U is larger, so this is a
+// knows none, U is the ground weight from the element table, or from
+// s.Overrides when that sets it (1 if it is unknown) and complete is false: the true U is larger, so this is a
 // lower bound. complete = true means a level set was summed; a level set
 // taken from the line list alone is itself incomplete (see LevelSourceOf).
 // A bare nucleus has U = 1 and complete = true. T is in K and must be > 0.
@@ -146,7 +146,7 @@ func (s *Store) PartitionFunctions(sp Species, temps, dst []float64) (complete b
 	if summed > 0 {
 		return true
 	}
-	g, _ := GroundWeight(sp)
+	g, _ := s.Overrides.GroundWeight(sp)
 	for k := range dst {
 		dst[k] = g
 	}

@@ -18,6 +18,10 @@ type Store struct {
 	// LevelOrigin[i] says where the levels of SpeciesTable[i] came from;
 	// it may be nil (then levels present count as LineLevels).
 	LevelOrigin []LevelSource
+	// Overrides, when not nil, are the user's corrections to ionisation
+	// energies and ground weights (see ReadOverrides). They apply to the
+	// ground-weight fallback of PartitionFunction and to Element.
+	Overrides *Overrides
 
 	// levelStart[i] is the first level of species i when Levels is grouped
 	// by species (levelStart has len(SpeciesTable)+1 entries); nil
@@ -47,3 +51,8 @@ func GroundWeight(sp Species) (g float64, known bool) {
 	}
 	return float64(e.GroundG[sp.Charge]), true
 }
+
+// Element returns element z with the store's overrides applied; physics
+// code should read ionisation energies through it so that a user's
+// corrections count.
+func (s *Store) Element(z int) (Element, error) { return s.Overrides.Element(z) }
