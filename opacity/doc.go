@@ -25,15 +25,22 @@
 //	Composition, NewComposition, ParseComposition   mass fractions per element
 //	PartitionFunc, GroundPartition, StorePartition  partition functions U(species, T)
 //	Solve → *Plasma (ElementState per element)       LTE plasma at (composition, ρ, T)
-//	(*Plasma).Species(sp) → n, U                     ion density and U of one species
-//	SpeciesFactors, BoltzmannFactors, LevelDensities the reusable pieces of τ:
-//	                                                 N_ion/U per species, e^{−E/kT} per level,
-//	                                                 and their product n_l/g_l per level
-//	Sobolev                                          τ of every line into dst
+//	(*Plasma).Species(sp) → n, U; (*Plasma).Element  ion density and U of one species
+//	SpeciesFactors, BoltzmannFactors, LevelDensities the reusable pieces of τ: N_ion/U per
+//	PlasmaLevelDensities                             species (per plasma), e^{−E/kT} per level
+//	                                                 (per T), their product n_l/g_l per level
+//	NewLines → *Lines                                a store prepared for repeated passes (gf)
+//	Sobolev, (*Lines).Sobolev                        τ of every line into dst
 //	CountAbove → Census                              lines with τ above a threshold, per species
-//	Grid, LinearGrid, LogGrid                        wavelength bins
-//	ExpansionOpacity → *Expansion                    binned κ, per-element breakdown,
+//	Grid, LinearGrid, LogGrid                        wavelength bins [Edges[k], Edges[k+1])
+//	ExpansionOpacity, (*Lines).Expansion,            binned κ with per-element breakdown
+//	ExpansionFromDepths → *Expansion
 //	(*Expansion).PlanckMean, (*Expansion).Grey       summaries in cm² g⁻¹
+//
+// For a velocity-shell model at one temperature: BoltzmannFactors once,
+// then per shell Solve (its density), SpeciesFactors, LevelDensities and
+// (*Lines).Sobolev. Errors wrap ErrInput, ErrComposition, ErrGrid or
+// ErrNotConverged.
 //
 // Approximations (stated again in docs/opacity.md): local thermodynamic
 // equilibrium with one temperature for ionisation and excitation; the Sobolev

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"runtime"
 	"sort"
 	"sync"
 	"sync/atomic"
@@ -114,22 +115,30 @@ type Expansion struct {
 // with τ_l the Sobolev optical depth (see Sobolev) and a line in bin k when
 // Edges[k] ≤ λ_l < Edges[k+1]. Bins are divided among workers; each bin is
 // summed by one worker in line order, so results do not depend on workers.
+// It prepares the store on every call; use (*Lines).Expansion to repeat.
 func ExpansionOpacity(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g Grid, workers int) (*Expansion, error) {
-	checkStore(st)
+	ls, err := NewLines(ctx, st, workers)
+	if err != nil {
+		return nil, err
+	}
+	return ls.Expansion(ctx, p, t, g, workers)
+}
+
+// Expansion is ExpansionOpacity for prepared lines: the τ of each line is
+// computed on the fly (as in Sobolev) and binned in the same pass.
+func (ls *Lines) Expansion(ctx context.Context, p *Plasma, t float64, g Grid, workers int) (*Expansion, error) {
+	st := ls.Store
+	if n := checkStore(st); len(ls.GF) != n {
+		panic(fmt.Sprintf("opacity: Expansion: %d gf for %d lines", len(ls.GF), n))
+	}
 	if err := checkTT(p.Temperature, t); err != nil {
 		return nil, err
 	}
 	if err := g.check(); err != nil {
 		return nil, err
 	}
-	lnLev := lnLevelTerms(nil, PlasmaLevelDensities(nil, st, p), t)
-	hck := spectra.HCOverK / p.Temperature
-	line := func(i int) float64 {
-		lam := st.Wavelength[i]
-		a := lnLev[st.Lower[i]] + float64(st.LogGF[i])*math.Ln10
-		return lam * math.Exp(a) * -math.Expm1(-hck/lam)
-	}
-	return binLines(ctx, st, p, t, g, workers, line)
+	lev := levelTerms(nil, PlasmaLevelDensities(nil, st, p), t)
+	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, spectra.HCOverK/p.Temperature)
 }
 
 // ExpansionFromDepths is ExpansionOpacity for optical depths tau already
@@ -144,11 +153,13 @@ func ExpansionFromDepths(ctx context.Context, st *linelists.Store, tau []float64
 	if err := g.check(); err != nil {
 		return nil, err
 	}
-	return binLines(ctx, st, p, t, g, workers, func(i int) float64 { return tau[i] })
+	return binLines(ctx, st, p, t, g, workers, tau, nil, nil, 0)
 }
 
-// binLines sums (λ_l/Δλ)(1 − e^{−τ_l}) per bin with τ_l = tau(l).
-func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g Grid, workers int, tau func(int) float64) (*Expansion, error) {
+// binLines sums (λ_l/Δλ)(1 − e^{−τ_l}) per bin, with τ_l = tau[l] when tau
+// is not nil, or else computed as in Sobolev from gf, lev (levelTerms) and
+// hck = hc/kT in Å.
+func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g Grid, workers int, tau, gf, lev []float64, hck float64) (*Expansion, error) {
 	nb := g.Bins()
 	ne := len(p.Elements)
 	x := &Expansion{
@@ -163,7 +174,7 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 		x.ByElement[r] = flat[r*nb : (r+1)*nb : (r+1)*nb]
 	}
 	// row[s] is the breakdown row of species s, or ne when the species is
-	// not modelled (its τ is 0; it goes to a scratch row).
+	// not modelled (its τ is 0; the scratch row ne collects the zeros).
 	row := make([]int32, len(st.SpeciesTable))
 	for s, sp := range st.SpeciesTable {
 		row[s] = int32(ne)
@@ -191,7 +202,7 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 	}
 	chunks = append(chunks, nb)
 	nc := len(chunks) - 1
-	workers = min(max(workers, 1), max(nc, 1))
+	workers = min(max(workers, 1), runtime.GOMAXPROCS(0), max(nc, 1))
 	scale := 1 / (p.Density * spectra.SpeedOfLight * t)
 	var next atomic.Int64
 	var unmodelled atomic.Int64
@@ -201,7 +212,7 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 		go func() {
 			defer wg.Done()
 			acc := make([]float64, ne+1)
-			cnt := 0
+			hist := make([]int, len(st.SpeciesTable))
 			for ctx.Err() == nil {
 				c := int(next.Add(1)) - 1
 				if c >= nc {
@@ -209,28 +220,24 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 				}
 				for k := chunks[c]; k < chunks[c+1]; k++ {
 					clear(acc)
-					sum := 0.0
-					for i := start[k]; i < start[k+1]; i++ {
-						tu := tau(i)
-						var esc float64
-						if tu < 1e-5 {
-							esc = tu * (1 - 0.5*tu)
-						} else {
-							esc = -math.Expm1(-tu)
-						}
-						w := wl[i] * esc
-						sum += w
-						r := row[st.Species[i]]
-						acc[r] += w
-						if int(r) == ne {
-							cnt++
-						}
+					i0, i1 := start[k], start[k+1]
+					var sum float64
+					if tau != nil {
+						sum = sumGiven(tau[i0:i1], wl[i0:i1], st.Species[i0:i1], row, acc, hist)
+					} else {
+						sum = sumFused(wl[i0:i1], gf[i0:i1], st.Species[i0:i1], st.Lower[i0:i1], lev, hck, row, acc, hist)
 					}
 					f := scale / g.Width(k)
 					x.Kappa[k] = sum * f
 					for r := 0; r < ne; r++ {
 						x.ByElement[r][k] = acc[r] * f
 					}
+				}
+			}
+			cnt := 0
+			for sp, n := range hist {
+				if row[sp] == int32(ne) {
+					cnt += n
 				}
 			}
 			unmodelled.Add(int64(cnt))
@@ -278,4 +285,90 @@ func (x *Expansion) Grey(from, to float64) (float64, error) {
 			ErrGrid, from, to, x.Grid.Edges[0], x.Grid.Edges[len(x.Grid.Edges)-1])
 	}
 	return num / den, nil
+}
+
+// sumFused returns Σ λ_l (1 − e^{−τ_l}) over a run of lines, adding each
+// term to acc[row[species]] and counting the lines of each species in hist,
+// with τ computed as in Sobolev: λ·gf·lev·stim. Lines of species not
+// modelled have lev = 0, so τ = 0, and go to the scratch row.
+func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck float64, row []int32, acc []float64, hist []int) float64 {
+	sum := 0.0
+	gf = gf[:len(wl)]
+	sp = sp[:len(wl)]
+	lower = lower[:len(wl)]
+	var sr stimRun
+	sr.reset(hck)
+	for i, lam := range wl {
+		s := sp[i]
+		hist[s]++
+		tu := lam * gf[i] * lev[lower[i]] * sr.factor(lam)
+		w := lam * escape(tu)
+		sum += w
+		acc[row[s]] += w
+	}
+	return sum
+}
+
+// stimRun evaluates the stimulated-emission factor 1 − e^{−x}, x = hc/λkT,
+// along wavelengths that ascend, with one exponential per stimRefresh lines:
+// from one line to the next e^{−x} is multiplied by e^{d}, d = x_prev − x,
+// taken from its Taylor series to d⁴ when 0 ≤ d ≤ 10⁻³ (truncation
+// < d⁵/120 ≈ 1e-17); a larger step, a descent or the refresh count takes a
+// fresh exponential. The rounding drift over stimRefresh steps stays below
+// about 1e-13 relative.
+type stimRun struct {
+	hck, x, e float64
+	left      int
+}
+
+const stimRefresh = 1024
+
+func (s *stimRun) reset(hck float64) { *s = stimRun{hck: hck} }
+
+func (s *stimRun) factor(lam float64) float64 {
+	x := s.hck / lam
+	d := s.x - x
+	if s.left > 0 && d >= 0 && d <= 1e-3 {
+		s.e *= 1 + d*(1+d*(1.0/2+d*(1.0/6+d*(1.0/24))))
+		s.left--
+	} else {
+		s.e = fastExp(-x)
+		s.left = stimRefresh
+	}
+	s.x = x
+	if x < 1e-3 {
+		return -math.Expm1(-x)
+	}
+	return 1 - s.e
+}
+
+// sumGiven is sumFused for optical depths already computed.
+func sumGiven(tau, wl []float64, sp []uint16, row []int32, acc []float64, hist []int) float64 {
+	sum := 0.0
+	tau = tau[:len(wl)]
+	sp = sp[:len(wl)]
+	for i, lam := range wl {
+		s := sp[i]
+		hist[s]++
+		w := lam * escape(tau[i])
+		sum += w
+		acc[row[s]] += w
+	}
+	return sum
+}
+
+// escape returns the escape-probability complement 1 − e^{−τ} for τ ≥ 0,
+// to 3e-14 relative for every τ (the arithmetic of fastExpm1, without its
+// range branches: arguments below −708 are clamped there, where the result
+// is 1 to double precision). It has no branch on τ, which in a big list
+// takes every value from 1e-30 to 1e6 in no order a predictor could learn.
+func escape(tau float64) float64 {
+	y := max(-tau, -708)
+	const shifter = 0x1.8p52
+	kf := (y*(64/math.Ln2) + shifter) - shifter
+	k := int64(kf)
+	r := (y - kf*ln2Hi) - kf*ln2Lo
+	q := r * (1 + r*(1.0/2+r*(1.0/6+r*(1.0/24+r*(1.0/120)))))
+	s := expTable[k&63] * math.Float64frombits(uint64((k>>6)+1023)<<52)
+	return -math.FMA(s, q, s-1)
 }

@@ -1,0 +1,140 @@
+package synth
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+
+	"broadline/opacity"
+	"broadline/spectra"
+)
+
+// Scenario records the parameters from which a set of synthetic spectra of
+// one event was made: the truth of a demo or of an injection–recovery test.
+// It is read from and written to JSON. Velocities are fractions of c.
+type Scenario struct {
+	// Label says what the scenario is; for the built-in demo it states that
+	// the event and its data are invented.
+	Label string `json:"label"`
+	// Object is the (invented) name of the event.
+	Object string `json:"object"`
+	// DistanceMpc is the distance in Mpc at which fluxes are given.
+	DistanceMpc float64 `json:"distance_mpc"`
+	// LineFiles and LevelFiles name the line lists and levels files, relative
+	// to the scenario file's directory.
+	LineFiles  []string `json:"line_files"`
+	LevelFiles []string `json:"level_files,omitempty"`
+	// MassFractions is the composition as opacity.ParseComposition reads it.
+	MassFractions   string  `json:"mass_fractions"`
+	EjectaMassSolar float64 `json:"ejecta_mass_msun"`
+	InnerVelocity   float64 `json:"inner_velocity_c"`
+	OuterVelocity   float64 `json:"outer_velocity_c"`
+	DensityIndex    float64 `json:"density_index"`
+	Diluted         bool    `json:"diluted_temperature"`
+	// ModelFromUm and ModelToUm are the model's vacuum wavelength range.
+	ModelFromUm float64 `json:"model_from_um"`
+	ModelToUm   float64 `json:"model_to_um"`
+	// Instrument describes how the spectra were "observed".
+	Instrument Instrument `json:"instrument"`
+	// Seed seeds the noise.
+	Seed   uint64  `json:"seed"`
+	Epochs []Epoch `json:"epochs"`
+}
+
+// Instrument describes the invented spectrograph of a scenario.
+type Instrument struct {
+	Description    string  `json:"description"`
+	ResolvingPower float64 `json:"resolving_power"`
+	// Pixels are spaced evenly in ln λ, PixelsPerResolution per λ/R, from
+	// FromUm to ToUm (vacuum).
+	FromUm              float64 `json:"from_um"`
+	ToUm                float64 `json:"to_um"`
+	PixelsPerResolution float64 `json:"pixels_per_resolution"`
+	// Removed are wavelength ranges (µm) cut from the spectra, as a
+	// reduction removes the opaque telluric bands; Flagged are ranges kept
+	// but marked bad in the mask column, with NoiseFactor times the noise.
+	Removed     [][2]float64 `json:"removed_um"`
+	Flagged     [][2]float64 `json:"flagged_um"`
+	NoiseFactor float64      `json:"flagged_noise_factor"`
+}
+
+// Epoch is one spectrum of a scenario.
+type Epoch struct {
+	File                string  `json:"file"`
+	Days                float64 `json:"days"`
+	PhotosphereVelocity float64 `json:"photosphere_velocity_c"`
+	Temperature         float64 `json:"temperature_k"`
+	// SNR is the signal-to-noise ratio per pixel at the continuum's median.
+	SNR float64 `json:"snr"`
+}
+
+// ReadScenario decodes and checks a scenario.
+func ReadScenario(r io.Reader) (*Scenario, error) {
+	var s Scenario
+	dec := json.NewDecoder(io.LimitReader(r, 1<<20))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&s); err != nil {
+		return nil, fmt.Errorf("synth: scenario: %w", err)
+	}
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	return &s, nil
+}
+
+// Validate checks that every epoch gives valid ejecta and the composition
+// parses.
+func (s *Scenario) Validate() error {
+	if _, err := opacity.ParseComposition(s.MassFractions); err != nil {
+		return fmt.Errorf("synth: scenario: %w", err)
+	}
+	if len(s.LineFiles) == 0 || len(s.Epochs) == 0 {
+		return fmt.Errorf("synth: scenario: needs line files and at least one epoch")
+	}
+	if !(s.DistanceMpc > 0) || !(s.ModelFromUm > 0) || !(s.ModelToUm > s.ModelFromUm) {
+		return fmt.Errorf("synth: scenario: distance and model range must be positive")
+	}
+	in := s.Instrument
+	if !(in.ResolvingPower > 0) || !(in.PixelsPerResolution > 0) || !(in.FromUm >= s.ModelFromUm) || !(in.ToUm <= s.ModelToUm) || !(in.ToUm > in.FromUm) {
+		return fmt.Errorf("synth: scenario: instrument range %g–%g µm must lie inside the model's %g–%g µm, with R and sampling > 0",
+			in.FromUm, in.ToUm, s.ModelFromUm, s.ModelToUm)
+	}
+	for i, e := range s.Epochs {
+		if err := s.Ejecta(i).Validate(); err != nil {
+			return fmt.Errorf("synth: scenario epoch %d: %w", i+1, err)
+		}
+		if !(e.SNR > 0) || e.File == "" {
+			return fmt.Errorf("synth: scenario epoch %d: needs a file name and SNR > 0", i+1)
+		}
+	}
+	return nil
+}
+
+// Composition returns the scenario's composition.
+func (s *Scenario) Composition() opacity.Composition {
+	c, _ := opacity.ParseComposition(s.MassFractions)
+	return c
+}
+
+// Ejecta returns the ejecta of epoch i.
+func (s *Scenario) Ejecta(i int) Ejecta {
+	e := s.Epochs[i]
+	return Ejecta{
+		Time: e.Days * spectra.Day, Mass: s.EjectaMassSolar * spectra.SolarMass,
+		BetaIn: s.InnerVelocity, BetaPh: e.PhotosphereVelocity, BetaMax: s.OuterVelocity,
+		DensityIndex: s.DensityIndex, Temperature: e.Temperature, Diluted: s.Diluted,
+	}
+}
+
+// Pixels returns the instrument's pixel wavelengths in Å, before any range
+// is removed.
+func (in Instrument) Pixels() []float64 {
+	step := 1 / (in.ResolvingPower * in.PixelsPerResolution)
+	n := int(math.Floor(math.Log(in.ToUm/in.FromUm)/step)) + 1
+	w := make([]float64, n)
+	for i := range w {
+		w[i] = in.FromUm * 1e4 * math.Exp(float64(i)*step)
+	}
+	return w
+}
