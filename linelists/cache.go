@@ -330,7 +330,7 @@ func (s *Store) validate() error {
 // optionsHash hashes what changes the parse of a file.
 func optionsHash(o *Options) uint64 {
 	h := fnv.New64a()
-	fmt.Fprintf(h, "v%d medium=%d keepdup=%v", cacheVersion, o.Medium, o.KeepDuplicates)
+	fmt.Fprintf(h, "v%d medium=%d keepdup=%v species=%v", cacheVersion, o.Medium, o.KeepDuplicates, o.Species)
 	if o.Import != nil {
 		b, _ := json.Marshal(o.Import)
 		h.Write(b)

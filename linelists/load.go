@@ -27,6 +27,9 @@ type Options struct {
 	Import *Import
 	// Medium of the wavelengths when a file does not say.
 	Medium Medium
+	// Species of every line, for files in our format without a species
+	// column.
+	Species Species
 	// Filter selects lines after loading; the others are counted.
 	Filter Filter
 	// Levels are levels files (see Builder.ReadLevels).
@@ -167,7 +170,7 @@ func parseFile(path string, opts *Options) (*Store, FileReport, error) {
 	defer f.Close()
 	b := NewBuilder()
 	b.KeepDuplicates = opts.KeepDuplicates
-	fr, err := b.Read(f, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium})
+	fr, err := b.Read(f, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium, Species: opts.Species})
 	if err != nil {
 		return nil, fr, err
 	}

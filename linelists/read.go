@@ -31,6 +31,10 @@ type ReadOptions struct {
 	// Medium of the wavelengths when the file does not say ("# medium:").
 	// If both say and disagree, reading fails.
 	Medium Medium
+	// Species, when not the zero value, is the species of every line of a
+	// file in our format that has no species column (the import path has
+	// Import.Species).
+	Species Species
 	// Filter selects lines; the others are skipped and counted.
 	Filter Filter
 }
@@ -158,7 +162,7 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 	comma := false
 	fields := make([][]byte, 0, 32)
 	lineNo := 0
-	var fixed Species
+	fixed := opts.Species
 	if imp != nil {
 		fixed = imp.Species
 		if !imp.HeaderRow {
