@@ -25,6 +25,7 @@
 //	Composition, NewComposition, ParseComposition   mass fractions per element
 //	PartitionFunc, GroundPartition, StorePartition  partition functions U(species, T)
 //	Solve → *Plasma (ElementState per element)       LTE plasma at (composition, ρ, T)
+//	Atoms, StoreAtoms, SolveAtoms                    the same with a store's atomic data (overrides)
 //	(*Plasma).Species(sp) → n, U; (*Plasma).Element  ion density and U of one species
 //	SpeciesFactors, BoltzmannFactors, LevelDensities the reusable pieces of τ: N_ion/U per
 //	PlasmaLevelDensities                             species (per plasma), e^{−E/kT} per level

@@ -126,6 +126,39 @@ type elementWork struct {
 // and fully ionised gases converge alike. An element with no known
 // ionisation energy stays neutral (Stages = 1).
 func Solve(c Composition, rho, T float64, part PartitionFunc) (*Plasma, error) {
+	return SolveAtoms(c, rho, T, Atoms{Partition: part})
+}
+
+// Atoms supplies the atomic data a plasma state reads.
+type Atoms struct {
+	// Element returns element z with its atomic weight and ionisation
+	// energies; nil means the linelists table (linelists.ElementByZ).
+	Element func(z int) (linelists.Element, error)
+	// Partition gives the partition functions; nil means GroundPartition.
+	Partition PartitionFunc
+}
+
+// StoreAtoms returns the atomic data as st knows them: ionisation energies
+// with the user's overrides applied (Store.Element) and partition functions
+// summed over the store's levels (Store.PartitionFunction, whose fallback is
+// the ground weight, overrides included).
+func StoreAtoms(st *linelists.Store) Atoms {
+	return Atoms{Element: st.Element, Partition: st.PartitionFunction}
+}
+
+// SolveAtoms is Solve with the atomic data taken from a.
+func SolveAtoms(c Composition, rho, T float64, a Atoms) (*Plasma, error) {
+	part := a.Partition
+	element := a.Element
+	if element == nil {
+		element = func(z int) (linelists.Element, error) {
+			e, err := linelists.ElementByZ(z)
+			if err != nil {
+				return linelists.Element{}, err
+			}
+			return *e, nil
+		}
+	}
 	if !(rho > 0) || math.IsInf(rho, 0) {
 		return nil, fmt.Errorf("opacity: %w: density %v g cm⁻³ (want a finite value > 0)", ErrInput, rho)
 	}
@@ -144,7 +177,7 @@ func Solve(c Composition, rho, T float64, part PartitionFunc) (*Plasma, error) {
 	lnS := math.Log(2*sahaConst) + 1.5*math.Log(T)
 	maxElectrons := 0.0
 	for k, z := range c.Z {
-		el, err := linelists.ElementByZ(z)
+		el, err := element(z)
 		if err != nil {
 			return nil, fmt.Errorf("opacity: %w: %w", ErrComposition, err)
 		}

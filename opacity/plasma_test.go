@@ -347,3 +347,24 @@ func TestSolveErrorsAndLookup(t *testing.T) {
 		t.Error("ground-level partition function reported complete")
 	}
 }
+
+// TestSolveAtoms: atomic data from a Store follow its overrides; a changed
+// ionisation energy moves the stage ratio exactly as the Saha equation says.
+func TestSolveAtoms(t *testing.T) {
+	c := mustComp(t, "Ca=1")
+	st := makeStore([]testLine{{linelists.Species{Z: 20, Charge: 1}, 8544.44, -0.36, 0, 2}})
+	st.Overrides = &linelists.Overrides{Ionization: map[linelists.Species]float64{{Z: 20, Charge: 0}: 6.5}}
+	p, err := SolveAtoms(c, 1e-13, 5000, StoreAtoms(st))
+	if err != nil {
+		t.Fatal(err)
+	}
+	e := p.Element(20)
+	got := e.Ion[1] * p.ElectronDensity / e.Ion[0]
+	if want := sahaDirect(5000, 6.5, e.Partition[0], e.Partition[1]); !scalar.EqualWithinAbsOrRel(got, want, 0, 1e-9) {
+		t.Errorf("Ca II/Ca I · n_e = %g with χ overridden to 6.5 eV, Saha gives %g", got, want)
+	}
+	// Ca II has a level in the store: its U is the store's level sum.
+	if u, _ := st.PartitionFunction(linelists.Species{Z: 20, Charge: 1}, 5000); e.Partition[1] != u {
+		t.Errorf("U(Ca II) = %v, the store's %v", e.Partition[1], u)
+	}
+}
