@@ -70,3 +70,48 @@ func checkStore(t *testing.T, s *Store) {
 		}
 	}
 }
+
+// FuzzReadLevels: no input may panic; errors are *ParseError; a failed
+// read adds nothing; levels that are read are valid.
+func FuzzReadLevels(f *testing.F) {
+	f.Add([]byte("species energy_cm-1 j\nCa_II 0 0.5\nCa_II 13650.19 1.5\n"))
+	f.Add([]byte("energy_eV, g\n0, 2\n1.7, 4\n"))
+	f.Add([]byte("species energy_eV g\nNd_II 1e999 8\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		b := NewBuilder()
+		_, err := b.ReadLevels(bytes.NewReader(data), LevelsOptions{Name: "fuzz"})
+		if err != nil {
+			var pe *ParseError
+			if !errors.As(err, &pe) {
+				t.Fatalf("error %T is not a *ParseError: %v", err, err)
+			}
+			if len(b.lvE) != 0 {
+				t.Fatal("failed read added levels")
+			}
+			return
+		}
+		s, _ := b.Build()
+		checkStore(t, s)
+	})
+}
+
+// FuzzReadOverrides: no input may panic; errors are *ParseError.
+func FuzzReadOverrides(f *testing.F) {
+	f.Add([]byte("species, ionization_eV, ground_g\nNd II, 10.80, -\nEu I, -, 7\n"))
+	f.Add([]byte("species ground_g\nFe_II 10\n"))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		o, err := ReadOverrides(bytes.NewReader(data), "fuzz")
+		if err != nil {
+			var pe *ParseError
+			if !errors.As(err, &pe) {
+				t.Fatalf("error %T is not a *ParseError: %v", err, err)
+			}
+			return
+		}
+		for sp, v := range o.Ionization {
+			if !(v > 0) || sp.Charge > 3 {
+				t.Fatalf("accepted %v = %v", sp, v)
+			}
+		}
+	})
+}

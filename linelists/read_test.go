@@ -345,3 +345,22 @@ func TestWriteSummary(t *testing.T) {
 		t.Errorf("summary %+v", sum.Species)
 	}
 }
+
+// TestReadFixedSpecies reads our format without a species column, the
+// species given for the whole file.
+func TestReadFixedSpecies(t *testing.T) {
+	in := "wavelength_um log_gf lower_energy_eV\n1.0330140 -0.35 1.8\n"
+	s, _, err := Read(strings.NewReader(in), ReadOptions{Species: MustSpecies("Sr II")})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.SpeciesTable[s.Species[0]] != MustSpecies("Sr II") || !scalar.EqualWithinAbs(s.Wavelength[0], 10330.14, 1e-9) {
+		t.Errorf("%v %v", s.SpeciesTable, s.Wavelength)
+	}
+	if _, _, err := Read(strings.NewReader(sample), ReadOptions{Species: MustSpecies("Sr II")}); err == nil || !errors.Is(err, ErrHeader) {
+		t.Errorf("species column plus a fixed species: %v", err)
+	}
+	if _, _, err := Read(strings.NewReader(in), ReadOptions{}); err == nil || !strings.Contains(err.Error(), "missing column(s) species") {
+		t.Errorf("no species at all: %v", err)
+	}
+}
