@@ -79,6 +79,9 @@ func (b *Builder) ReadLevels(r io.Reader, opts LevelsOptions) (LevelsReport, err
 			break
 		}
 		lineNo++
+		if lineNo == 1 {
+			raw = bytes.TrimPrefix(raw, utf8BOM) // a byte-order mark some editors write
+		}
 		line := bytes.TrimSpace(raw)
 		switch {
 		case len(line) == 0:

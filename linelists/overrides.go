@@ -52,6 +52,9 @@ func ReadOverrides(r io.Reader, name string) (*Overrides, error) {
 			break
 		}
 		lineNo++
+		if lineNo == 1 {
+			raw = bytes.TrimPrefix(raw, utf8BOM) // a byte-order mark some editors write
+		}
 		line := bytes.TrimSpace(raw)
 		if len(line) > 0 && line[0] != '#' {
 			if nf == 0 {

@@ -21,6 +21,8 @@ const (
 	maxMetaLines  = 1000     // "# key: value" lines kept per file
 )
 
+var utf8BOM = []byte("\xef\xbb\xbf")
+
 // ReadOptions controls reading one file.
 type ReadOptions struct {
 	// Name is the file name used in errors and reports.
@@ -192,6 +194,9 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 			break
 		}
 		lineNo++
+		if lineNo == 1 {
+			raw = bytes.TrimPrefix(raw, utf8BOM) // a byte-order mark some editors write
+		}
 		line := bytes.TrimRight(raw, "\r\n")
 		line = bytes.TrimSpace(line)
 		if len(line) == 0 {

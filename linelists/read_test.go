@@ -87,6 +87,17 @@ func TestReadCommaAndGF(t *testing.T) {
 	}
 }
 
+func TestReadBOMAndCRLF(t *testing.T) {
+	in := "\xef\xbb\xbf# medium: air\r\n" + strings.ReplaceAll(sample[strings.Index(sample, "log_gf"):], "\n", "\r\n")
+	s, _, err := Read(strings.NewReader(in), ReadOptions{})
+	if err != nil || s.Len() != 4 {
+		t.Fatalf("%v", err)
+	}
+	if !scalar.EqualWithinAbs(s.Wavelength[0], 8500.36, 0.01) {
+		t.Errorf("medium line after a BOM not read: %v", s.Wavelength[0])
+	}
+}
+
 func TestReadGzip(t *testing.T) {
 	var buf bytes.Buffer
 	zw := gzip.NewWriter(&buf)

@@ -25,14 +25,16 @@ func (s Species) String() string {
 	return e.Symbol + " " + Roman(s.Stage())
 }
 
-// Roman returns n (1–39) in Roman numerals, as used for ion stages.
+// Roman returns n (1–399) in Roman numerals, as used for ion stages (a
+// bare fermium nucleus is stage CI); other n are printed as "(n)".
 func Roman(n int) string {
-	if n <= 0 || n >= 40 {
+	if n <= 0 || n >= 400 {
 		return fmt.Sprintf("(%d)", n)
 	}
-	tens := []string{"", "X", "XX", "XXX"}
+	hundreds := []string{"", "C", "CC", "CCC"}
+	tens := []string{"", "X", "XX", "XXX", "XL", "L", "LX", "LXX", "LXXX", "XC"}
 	ones := []string{"", "I", "II", "III", "IV", "V", "VI", "VII", "VIII", "IX"}
-	return tens[n/10] + ones[n%10]
+	return hundreds[n/100] + tens[n/10%10] + ones[n%10]
 }
 
 // speciesWant is the "what was expected" part of every species error.
@@ -142,13 +144,14 @@ func splitSymbolRoman(in, letters string) (Species, error) {
 	return Species{}, fmt.Errorf("%w: %q is not an element symbol followed by an ion stage: %s", ErrSpecies, in, speciesWant)
 }
 
-// parseRoman reads an ion stage I–XXXIX, any case.
+// parseRoman reads an ion stage I–CI (the highest stage of Z = 100), in
+// canonical form, any case.
 func parseRoman(s string) (int, bool) {
-	if len(s) == 0 || len(s) > 8 {
+	if len(s) == 0 || len(s) > 9 {
 		return 0, false
 	}
 	u := strings.ToUpper(s)
-	for n := 1; n < 40; n++ {
+	for n := 1; n <= 101; n++ {
 		if Roman(n) == u {
 			return n, true
 		}

@@ -20,6 +20,7 @@ func TestParseSpecies(t *testing.T) {
 		{"SIII", Species{16, 2}}, {"SiIII", Species{14, 2}}, {"FEII", Species{26, 1}},
 		{"H II", Species{1, 1}}, {"IV", Species{53, 4}}, {"VII", Species{23, 1}},
 		{"Sr_II", Species{38, 1}}, {"U III", Species{92, 2}}, {"Fm I", Species{100, 0}},
+		{"Nd XLIX", Species{60, 48}}, {"Fm CI", Species{100, 100}}, {"Fm 99+", Species{100, 99}},
 	} {
 		got, err := ParseSpecies(tc.in)
 		if err != nil {
@@ -37,6 +38,11 @@ func TestParseSpecies(t *testing.T) {
 	}
 	if s := nd2.String(); s != "Nd II" {
 		t.Errorf("String() = %q, want \"Nd II\"", s)
+	}
+	for n, want := range map[int]string{4: "IV", 9: "IX", 14: "XIV", 40: "XL", 49: "XLIX", 90: "XC", 101: "CI", 399: "CCCXCIX", 0: "(0)"} {
+		if got := Roman(n); got != want {
+			t.Errorf("Roman(%d) = %q, want %q", n, got, want)
+		}
 	}
 }
 
