@@ -630,8 +630,22 @@ func (t *textReader) finish() (*Spectrum, error) {
 		AirToVacuumAll(t.wave)
 	}
 	var unc []float64
+	uncNote := ""
 	if t.iu >= 0 {
 		unc = t.unc
+		// A column of nothing but NaN means "no uncertainties" (what the
+		// prep command writes for a spectrum without them).
+		allNaN := true
+		for _, u := range unc {
+			if !math.IsNaN(u) {
+				allNaN = false
+				break
+			}
+		}
+		if allNaN {
+			unc = nil
+			uncNote = "; the uncertainty column holds only NaN and was ignored"
+		}
 	}
 	s, err := New(t.wave, t.flux, unc, meta)
 	if err != nil {
@@ -649,8 +663,8 @@ func (t *textReader) finish() (*Spectrum, error) {
 			}
 		}
 	}
-	s.addHistory("read %d samples from %s (text; %d comment and %d blank lines skipped; wavelengths in %s, %s)",
-		s.Len(), nameOr(t.opt.Name), t.commentLines, t.blankLines, unit, med)
+	s.addHistory("read %d samples from %s (text; %d comment and %d blank lines skipped; wavelengths in %s, %s%s)",
+		s.Len(), nameOr(t.opt.Name), t.commentLines, t.blankLines, unit, med, uncNote)
 	return s, nil
 }
 
