@@ -1,0 +1,262 @@
+// Command demospectra writes the invented spectra of broadline's built-in
+// demo: a fictional merger counterpart, "DEMO-1 (invented)", at an invented
+// distance, observed at three invented epochs by an invented ground-based
+// near-infrared spectrograph. Each spectrum is made by the model of package
+// opacity/synth from the invented line lists in app/demo/lines, given a
+// blackbody continuum at the distance, smoothed to a coarse resolving power,
+// sampled on the instrument's pixels, given seeded Gaussian noise, and cut or
+// flagged at the telluric bands. The parameters, the truth of the demo, are
+// written to scenario.json beside the spectra; nothing here is an
+// observation.
+//
+//	go run ./tools/demospectra [-out app/demo/spectra] [-lines app/demo/lines]
+//
+// The output depends only on the parameters in this file (including the
+// seed), so running it again reproduces the committed files.
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strconv"
+
+	"broadline/linelists"
+	"broadline/opacity/synth"
+	"broadline/spectra"
+)
+
+// demoScenario is the recorded truth of the demo. The line files are named
+// relative to the scenario file (app/demo/spectra/).
+func demoScenario() *synth.Scenario {
+	els := []string{"ca", "sr", "y", "zr", "ce", "nd", "sm", "eu"}
+	var lines, levels []string
+	for _, e := range els {
+		lines = append(lines, "../lines/demo_"+e+".txt.gz")
+		if e != "ca" {
+			levels = append(levels, "../lines/demo_"+e+"_levels.txt.gz")
+		}
+	}
+	return &synth.Scenario{
+		Label: "INVENTED DEMONSTRATION DATA: a fictional event, an invented distance, invented epochs, " +
+			"invented line lists and an invented spectrograph. Not an observation; do not use for science. " +
+			"Te carries the mass of the elements that have no demo line list (it has no lines here); the " +
+			"small fractions of Y, Zr and the lanthanides are chosen so that the invented, very line-rich " +
+			"demo atoms leave a few broad features rather than a black spectrum.",
+		Object:          "DEMO-1 (invented)",
+		DistanceMpc:     62,
+		LineFiles:       lines,
+		LevelFiles:      levels,
+		MassFractions:   "Ca=0.002,Sr=0.01,Y=3e-6,Zr=5e-7,Ce=2e-7,Nd=2e-7,Sm=5e-8,Eu=5e-8,Te=0.988",
+		EjectaMassSolar: 0.04,
+		InnerVelocity:   0.05,
+		OuterVelocity:   0.35,
+		DensityIndex:    3,
+		ModelFromUm:     0.36,
+		ModelToUm:       2.5,
+		Instrument: synth.Instrument{
+			Description: "invented ground-based optical/near-infrared spectrograph, R = 500, 2 pixels per resolution element; " +
+				"the opaque water bands removed, the other telluric bands flagged (band edges: common practice)",
+			ResolvingPower:      500,
+			FromUm:              0.40,
+			ToUm:                2.40,
+			PixelsPerResolution: 2,
+			Removed:             [][2]float64{{1.35, 1.45}, {1.80, 1.95}},
+			Flagged:             [][2]float64{{0.686, 0.690}, {0.759, 0.770}, {0.93, 0.97}, {1.11, 1.16}, {2.00, 2.07}},
+			NoiseFactor:         3,
+		},
+		Seed: 20261202,
+		Epochs: []synth.Epoch{
+			{File: "demo_epoch1.txt", Days: 1.5, PhotosphereVelocity: 0.24, Temperature: 5000, SNR: 40},
+			{File: "demo_epoch2.txt", Days: 3.5, PhotosphereVelocity: 0.17, Temperature: 3700, SNR: 25},
+			{File: "demo_epoch3.txt", Days: 7.5, PhotosphereVelocity: 0.11, Temperature: 2700, SNR: 12},
+		},
+	}
+}
+
+func main() {
+	out := flag.String("out", "app/demo/spectra", "output directory (the scenario's line files are relative to it)")
+	flag.Parse()
+	if err := run(*out); err != nil {
+		fmt.Fprintln(os.Stderr, "demospectra:", err)
+		os.Exit(1)
+	}
+}
+
+func run(dir string) error {
+	sc := demoScenario()
+	if err := sc.Validate(); err != nil {
+		return err
+	}
+	st, err := LoadStore(dir, sc)
+	if err != nil {
+		return err
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	for i := range sc.Epochs {
+		s, err := Observe(context.Background(), sc, st, i)
+		if err != nil {
+			return err
+		}
+		if err := os.WriteFile(filepath.Join(dir, sc.Epochs[i].File), Format(sc, i, s), 0o644); err != nil {
+			return err
+		}
+	}
+	js, err := json.MarshalIndent(sc, "", "  ")
+	if err != nil {
+		return err
+	}
+	return os.WriteFile(filepath.Join(dir, "scenario.json"), append(js, '\n'), 0o644)
+}
+
+// LoadStore reads the scenario's line lists and levels files, named
+// relative to dir.
+func LoadStore(dir string, sc *synth.Scenario) (*linelists.Store, error) {
+	b := linelists.NewBuilder()
+	for _, f := range sc.LineFiles {
+		p := filepath.Join(dir, f)
+		r, err := os.Open(p)
+		if err != nil {
+			return nil, err
+		}
+		_, err = b.Read(r, linelists.ReadOptions{Name: p})
+		r.Close()
+		if err != nil {
+			return nil, err
+		}
+	}
+	for _, f := range sc.LevelFiles {
+		p := filepath.Join(dir, f)
+		r, err := os.Open(p)
+		if err != nil {
+			return nil, err
+		}
+		_, err = b.ReadLevels(r, linelists.LevelsOptions{Name: p})
+		r.Close()
+		if err != nil {
+			return nil, err
+		}
+	}
+	st, _ := b.Build()
+	return st, nil
+}
+
+// Noiseless returns epoch i's model flux (erg s⁻¹ cm⁻² Å⁻¹ at the
+// scenario's distance) and blackbody continuum on the instrument's pixels,
+// smoothed to its resolving power, with the photosphere velocity replaced by
+// betaPh when it is > 0 (for recovery tests).
+func Noiseless(ctx context.Context, sc *synth.Scenario, m *synth.Model, i int, betaPh float64) (wave, flux, cont []float64, err error) {
+	ej := sc.Ejecta(i)
+	if betaPh > 0 {
+		ej.BetaPh = betaPh
+	}
+	res, err := m.Spectrum(ctx, sc.Composition(), ej, synth.Settings{Workers: runtime.GOMAXPROCS(0)})
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	res.Flux = res.AtDistance(sc.DistanceMpc * spectra.Megaparsec)
+	wave = sc.Instrument.Pixels()
+	flux, _, err = res.Observe(sc.Instrument.ResolvingPower, wave)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	rph := ej.PhotosphereRadius()
+	cont = spectra.BlackbodyFluxes(nil, wave, ej.Temperature, rph, sc.DistanceMpc*spectra.Megaparsec)
+	return wave, flux, cont, nil
+}
+
+// NewModel returns the model over the scenario's range.
+func NewModel(sc *synth.Scenario, st *linelists.Store) (*synth.Model, error) {
+	return synth.NewModel(st, sc.ModelFromUm*1e4, sc.ModelToUm*1e4, 0)
+}
+
+// Observe returns epoch i as the invented instrument records it: the pixels
+// left after the removed ranges, flux with noise, its uncertainty, and the
+// mask (1 inside flagged telluric bands).
+func Observe(ctx context.Context, sc *synth.Scenario, st *linelists.Store, i int) (*spectra.Spectrum, error) {
+	m, err := NewModel(sc, st)
+	if err != nil {
+		return nil, err
+	}
+	wave, flux, cont, err := Noiseless(ctx, sc, m, i, 0)
+	if err != nil {
+		return nil, err
+	}
+	in := sc.Instrument
+	med := slices.Clone(cont)
+	slices.Sort(med)
+	s0 := med[len(med)/2]
+	rng := rand.New(rand.NewPCG(sc.Seed, uint64(i)))
+	inside := func(l float64, bands [][2]float64) bool {
+		for _, b := range bands {
+			if l >= b[0]*1e4 && l <= b[1]*1e4 {
+				return true
+			}
+		}
+		return false
+	}
+	var w, f, u []float64
+	var mask []spectra.MaskReason
+	for k, l := range wave {
+		// Photon noise scaled to SNR at the continuum's median, with a floor
+		// of a fifth of that level (read noise and sky, common practice).
+		sigma := s0 / sc.Epochs[i].SNR * math.Sqrt(math.Max(flux[k], 0.04*s0)/s0)
+		var mk spectra.MaskReason
+		if inside(l, in.Flagged) {
+			sigma *= in.NoiseFactor
+			mk = spectra.MaskFile
+		}
+		noisy := flux[k] + sigma*rng.NormFloat64()
+		if inside(l, in.Removed) {
+			continue
+		}
+		w, f, u, mask = append(w, l), append(f, noisy), append(u, sigma), append(mask, mk)
+	}
+	s, err := spectra.New(w, f, u, spectra.Metadata{Object: sc.Object, Epoch: sc.Epochs[i].Days, FluxUnit: spectra.FluxPerAngstrom})
+	if err != nil {
+		return nil, err
+	}
+	s.Mask = mask
+	return s, nil
+}
+
+// Format writes s in the plain-text format spectra.ReadText reads, with a
+// header that says the data are invented.
+func Format(sc *synth.Scenario, i int, s *spectra.Spectrum) []byte {
+	var b bytes.Buffer
+	e := sc.Epochs[i]
+	fmt.Fprintf(&b, "# INVENTED DEMONSTRATION DATA - NOT AN OBSERVATION.\n")
+	fmt.Fprintf(&b, "# A synthetic spectrum of a fictional event, made by broadline's tools/demospectra\n")
+	fmt.Fprintf(&b, "# with the model of opacity/synth from the invented line lists in app/demo/lines,\n")
+	fmt.Fprintf(&b, "# plus seeded noise. The true parameters are in scenario.json. Not for science.\n")
+	fmt.Fprintf(&b, "# object = %s\n", sc.Object)
+	fmt.Fprintf(&b, "# epoch = %g\n", e.Days)
+	fmt.Fprintf(&b, "# flux_unit = erg/s/cm2/A\n")
+	fmt.Fprintf(&b, "# medium = vacuum\n")
+	fmt.Fprintf(&b, "# instrument = %s\n", sc.Instrument.Description)
+	fmt.Fprintf(&b, "# mask: 1 = inside a flagged telluric band; the opaque bands %v um are removed\n", sc.Instrument.Removed)
+	b.WriteString("wavelength_um flux flux_err mask\n")
+	for k, l := range s.Wavelength {
+		b.WriteString(strconv.FormatFloat(l*1e-4, 'f', 6, 64))
+		b.WriteByte(' ')
+		b.WriteString(strconv.FormatFloat(s.Flux[k], 'e', 4, 64))
+		b.WriteByte(' ')
+		b.WriteString(strconv.FormatFloat(s.Uncertainty[k], 'e', 3, 64))
+		if s.Mask[k] != 0 {
+			b.WriteString(" 1\n")
+		} else {
+			b.WriteString(" 0\n")
+		}
+	}
+	return b.Bytes()
+}
