@@ -23,6 +23,11 @@ const (
 	// agree in wavelength to dupWavelength Å and in log gf to dupLogGF.
 	dupWavelength = 1e-3
 	dupLogGF      = 1e-3
+	// dupLookback bounds how many earlier lines a line is compared with,
+	// so that a list with thousands of lines at one wavelength cannot make
+	// the search quadratic (lines of equal wavelength are ordered by
+	// species and lower level, so true duplicates sit close together).
+	dupLookback = 256
 )
 
 // Report says what loading did: per file, and for the store built.
@@ -329,7 +334,7 @@ func (s *Store) dedup(keep bool) int {
 	w := 0
 	for i := 0; i < n; i++ {
 		dup := false
-		for k := w - 1; k >= 0 && s.Wavelength[i]-s.Wavelength[k] <= dupWavelength; k-- {
+		for k := w - 1; k >= 0 && k >= w-dupLookback && s.Wavelength[i]-s.Wavelength[k] <= dupWavelength; k-- {
 			if s.Species[k] == s.Species[i] && s.Lower[k] == s.Lower[i] && math.Abs(float64(s.LogGF[k]-s.LogGF[i])) <= dupLogGF {
 				dup = true
 				break
@@ -466,12 +471,14 @@ func (b *Builder) matchFileLevels() (remap []uint32, dropped []bool, unmatched i
 		e := b.lvE[i]
 		k, _ := slices.BinarySearchFunc(fl, e, func(x uint32, t float64) int { return cmp.Compare(b.lvE[x], t) })
 		best, bestD := -1, levelMatchTolerance
-		for j := k - 1; j >= 0 && e-b.lvE[fl[j]] <= levelMatchTolerance; j-- {
+		// Look at most dupLookback file levels each way (bounded work on
+		// pathological input with many levels at one energy).
+		for j := k - 1; j >= 0 && j >= k-dupLookback && e-b.lvE[fl[j]] <= levelMatchTolerance; j-- {
 			if d := e - b.lvE[fl[j]]; d <= bestD && (b.lvG[i] == 0 || b.lvG[fl[j]] == b.lvG[i]) {
 				best, bestD = int(fl[j]), d
 			}
 		}
-		for j := k; j < len(fl) && b.lvE[fl[j]]-e <= levelMatchTolerance; j++ {
+		for j := k; j < len(fl) && j < k+dupLookback && b.lvE[fl[j]]-e <= levelMatchTolerance; j++ {
 			if d := b.lvE[fl[j]] - e; d <= bestD && (b.lvG[i] == 0 || b.lvG[fl[j]] == b.lvG[i]) {
 				best, bestD = int(fl[j]), d
 			}

@@ -375,3 +375,18 @@ func TestReadFixedSpecies(t *testing.T) {
 		t.Errorf("no species at all: %v", err)
 	}
 }
+
+// TestDedupBounded: 200 000 distinct lines at one wavelength must not make
+// duplicate detection quadratic (this would take minutes), and exact
+// repeats among them are still found.
+func TestDedupBounded(t *testing.T) {
+	b := NewBuilder()
+	for i := 0; i < 200000; i++ {
+		b.Add(Line{Wavelength: 5000, LogGF: -1, Species: Species{Z: 60, Charge: 1}, LowerEnergy: float64(i) * 1e-3, LowerG: 8})
+	}
+	b.Add(Line{Wavelength: 5000, LogGF: -1, Species: Species{Z: 60, Charge: 1}, LowerEnergy: 7e-3, LowerG: 8})
+	s, rep := b.Build()
+	if s.Len() != 200000 || rep.Duplicates != 1 {
+		t.Errorf("%d lines, %d duplicates; want 200000 and 1", s.Len(), rep.Duplicates)
+	}
+}
