@@ -78,13 +78,19 @@ func forEach(n, workers int, f func(i int)) {
 type ElementShare struct {
 	Z      int
 	Symbol string
-	// Absorbed is the absorbed equivalent width (Å) that disappears from the
-	// window when the element's lines are removed: EW(all) − EW(without it),
-	// with EW = ∫ (1 − F/F_c) dλ of the absorption-only approximation.
-	Absorbed float64
-	// Share is Absorbed over the sum of all elements' Absorbed (0 … 1).
-	// Because absorption saturates, the separate Absorbed values need not
-	// add up to the window's total.
+	// Alone is the absorbed equivalent width (Å) in the window with only
+	// this element's lines, EW = ∫ (1 − F/F_c) dλ of the absorption-only
+	// approximation.
+	Alone float64
+	// KnockOut is the absorbed equivalent width (Å) that disappears from the
+	// window when the element's lines are removed: EW(all) − EW(without it).
+	// Where several elements each saturate the same wavelengths it is near
+	// zero for all of them; Alone still tells them apart.
+	KnockOut float64
+	// Share is Alone over the sum of all elements' Alone (0 … 1): the
+	// element's share of the absorbed equivalent width. Because absorption
+	// saturates and blends overlap, the separate widths need not add up to
+	// the window's total.
 	Share float64
 }
 
@@ -108,12 +114,13 @@ type Attribution struct {
 	// Absorbed is the window's absorbed equivalent width in Å with every
 	// element present (absorption-only approximation).
 	Absorbed float64
-	Elements []ElementShare     // by decreasing Absorbed
+	Elements []ElementShare     // by decreasing Share
 	Lines    []LineContribution // by decreasing TauPhotosphere, at most the number asked for
 }
 
 // Attribute returns each element's share of the absorbed equivalent width in
-// the observed window [from, to] Å and the nLines lines with the largest
+// the observed window [from, to] Å (with only its lines, and lost without
+// them) and the nLines lines with the largest
 // Sobolev optical depth at the photosphere whose acting wavelength
 // λ₀(1 − v_ph/c) falls in the window. The shares use the absorption-only
 // approximation, which measures what the lines take out of the photosphere's
@@ -145,36 +152,41 @@ func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejec
 		}
 		return w, nil
 	}
+	// Index i < n: without element i; n ≤ i < 2n: element i−n alone; 2n: all.
 	n := len(comp.Z)
-	ews := make([]float64, n+1)
-	errs := make([]error, n+1)
-	forEach(n+1, set.Workers, func(i int) {
-		if i == n {
+	ews := make([]float64, 2*n+1)
+	errs := make([]error, 2*n+1)
+	forEach(2*n+1, set.Workers, func(i int) {
+		switch {
+		case i == 2*n:
 			ews[i], errs[i] = ew(nil)
-			return
+		case i < n:
+			z := comp.Z[i]
+			ews[i], errs[i] = ew(func(sp linelists.Species) bool { return int(sp.Z) == z })
+		default:
+			z := comp.Z[i-n]
+			ews[i], errs[i] = ew(func(sp linelists.Species) bool { return int(sp.Z) != z })
 		}
-		z := comp.Z[i]
-		ews[i], errs[i] = ew(func(sp linelists.Species) bool { return int(sp.Z) == z })
 	})
 	for _, err := range errs {
 		if err != nil {
 			return nil, err
 		}
 	}
-	a := &Attribution{From: from, To: to, Absorbed: ews[n]}
+	a := &Attribution{From: from, To: to, Absorbed: ews[2*n]}
 	sum := 0.0
 	for i, z := range comp.Z {
 		e, _ := linelists.ElementByZ(z)
-		d := max(0, ews[n]-ews[i])
-		a.Elements = append(a.Elements, ElementShare{Z: z, Symbol: e.Symbol, Absorbed: d})
-		sum += d
+		a.Elements = append(a.Elements, ElementShare{Z: z, Symbol: e.Symbol,
+			Alone: ews[n+i], KnockOut: max(0, ews[2*n]-ews[i])})
+		sum += ews[n+i]
 	}
 	for i := range a.Elements {
 		if sum > 0 {
-			a.Elements[i].Share = a.Elements[i].Absorbed / sum
+			a.Elements[i].Share = a.Elements[i].Alone / sum
 		}
 	}
-	sort.SliceStable(a.Elements, func(i, j int) bool { return a.Elements[i].Absorbed > a.Elements[j].Absorbed })
+	sort.SliceStable(a.Elements, func(i, j int) bool { return a.Elements[i].Share > a.Elements[j].Share })
 	a.Lines = m.strongestLines(s, ej, from, to, nLines)
 	return a, nil
 }

@@ -227,12 +227,15 @@ func TestAttribute(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if a.Elements[0].Symbol != "Ca" || a.Elements[0].Share < 0.5 {
+	if a.Elements[0].Symbol != "Ca" || a.Elements[0].Share < 0.5 || a.Elements[0].KnockOut < 0.5*a.Absorbed {
 		t.Errorf("window 6400–7000 Å: elements %+v, want Ca first with most of the absorption", a.Elements)
 	}
 	sum := 0.0
 	for _, e := range a.Elements {
 		sum += e.Share
+		if e.Alone > a.Absorbed*(1+1e-9) {
+			t.Errorf("%s alone absorbs %g Å, more than all elements together (%g Å)", e.Symbol, e.Alone, a.Absorbed)
+		}
 	}
 	if !scalar.EqualWithinAbs(sum, 1, 1e-12) {
 		t.Errorf("shares sum to %g", sum)
