@@ -1,0 +1,152 @@
+package main
+
+import (
+	"context"
+	"os"
+	"strconv"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/linelists"
+	"broadline/opacity"
+	"broadline/spectra"
+)
+
+func parseOpacityCSV(t *testing.T, out string) (header []string, rows [][]float64) {
+	t.Helper()
+	lines := strings.Split(strings.TrimSuffix(out, "\n"), "\n")
+	header = strings.Split(lines[0], ",")
+	for _, l := range lines[1:] {
+		var row []float64
+		for _, f := range strings.Split(l, ",") {
+			v, err := strconv.ParseFloat(f, 64)
+			if err != nil {
+				t.Fatalf("row %q: %v", l, err)
+			}
+			row = append(row, v)
+		}
+		if len(row) != len(header) {
+			t.Fatalf("row %q has %d fields, header %d", l, len(row), len(header))
+		}
+		rows = append(rows, row)
+	}
+	return header, rows
+}
+
+func TestOpacityCommand(t *testing.T) {
+	lines := writeOpacityTemp(t, "casr.txt", opacityTestList)
+	args := []string{"opacity", "--lines", lines, "--mass-fractions", "Ca=0.4,Sr=0.3,Nd=0.3", "--temperature", "5000",
+		"--density", "1e-13", "--days", "1", "--from-um", "0.8", "--to-um", "1.3", "--bin-um", "0.1"}
+	s, out, errs := runOpacityCmd(args...)
+	if s != 0 {
+		t.Fatalf("status %d, stderr %q", s, errs)
+	}
+	header, rows := parseOpacityCSV(t, out)
+	if strings.Join(header, ",") != "wavelength_um,kappa_cm2_g,Ca,Sr,Nd" {
+		t.Errorf("header %v", header)
+	}
+	if len(rows) != 5 {
+		t.Fatalf("%d rows, want 5 bins of 0.1 µm in 0.8–1.3 µm", len(rows))
+	}
+	for k, r := range rows {
+		if c := 0.85 + 0.1*float64(k); !scalar.EqualWithinAbsOrRel(r[0], c, 1e-12, 0) {
+			t.Errorf("row %d: centre %v µm, want %v", k, r[0], c)
+		}
+		if sum := r[2] + r[3] + r[4]; !scalar.EqualWithinAbsOrRel(sum, r[1], 1e-300, 1e-7) {
+			t.Errorf("row %d: element columns sum to %v, κ = %v", k, sum, r[1])
+		}
+	}
+	// Ca lines lie in [0.8, 0.9), Sr in [1.0, 1.1), Nd (and unmodelled Fe) in [1.2, 1.3).
+	if rows[0][2] <= 0 || rows[0][3] != 0 || rows[2][3] <= 0 || rows[2][2] != 0 || rows[4][4] <= 0 || rows[1][1] != 0 || rows[3][1] != 0 {
+		t.Errorf("lines in the wrong bins: %v", rows)
+	}
+	// The same numbers from the package on the same file (8 digits printed).
+	f, err := os.Open(lines)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, _, err := linelists.Read(f, linelists.ReadOptions{Name: lines})
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	comp, _ := opacity.ParseComposition("Ca=0.4,Sr=0.3,Nd=0.3")
+	p, err := opacity.SolveAtoms(comp, 1e-13, 5000, opacity.StoreAtoms(st))
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, _ := opacity.LinearGrid(8000, 13000, 1000)
+	x, err := opacity.ExpansionOpacity(context.Background(), st, p, spectra.Day, g, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := range rows {
+		if !scalar.EqualWithinAbsOrRel(rows[k][1], x.Kappa[k], 1e-300, 1e-7) {
+			t.Errorf("bin %d: command κ %v, package %v", k, rows[k][1], x.Kappa[k])
+		}
+	}
+	if !strings.Contains(errs, "1 of elements or stages not modelled") || strings.Count(errs, "\n") != 1 {
+		t.Errorf("summary %q should count the one Fe line as not modelled", errs)
+	}
+
+	// A line exactly on an edge belongs to the bin that starts there.
+	edge := writeOpacityTemp(t, "edge.txt", "# medium: vacuum\nwavelength_A species log_gf lower_energy_eV lower_g\n9000.0 Ca_II 0 0 2\n")
+	args[2] = edge
+	s, out, errs = runOpacityCmd(args...)
+	if s != 0 {
+		t.Fatalf("edge: status %d, %q", s, errs)
+	}
+	_, rows = parseOpacityCSV(t, out)
+	if rows[0][1] != 0 || !(rows[1][1] > 0) {
+		t.Errorf("line at 0.9 µm: κ = %v in [0.8, 0.9) and %v in [0.9, 1.0); want 0 and > 0", rows[0][1], rows[1][1])
+	}
+}
+
+func TestOpacityCommandErrors(t *testing.T) {
+	lines := writeOpacityTemp(t, "casr.txt", opacityTestList)
+	base := map[string]string{"--lines": lines, "--mass-fractions": "Ca=1", "--temperature": "5000", "--density": "1e-13",
+		"--days": "1", "--from-um": "0.8", "--to-um": "1.3", "--bin-um": "0.1"}
+	order := []string{"--lines", "--mass-fractions", "--temperature", "--density", "--days", "--from-um", "--to-um", "--bin-um"}
+	with := func(kv ...string) []string {
+		m := map[string]string{}
+		for k, v := range base {
+			m[k] = v
+		}
+		for i := 0; i < len(kv); i += 2 {
+			m[kv[i]] = kv[i+1]
+		}
+		a := []string{"opacity"}
+		for _, k := range order {
+			if m[k] != "" {
+				a = append(a, k, m[k])
+			}
+		}
+		return a
+	}
+	for _, tc := range []struct {
+		args []string
+		flag string
+	}{
+		{with("--temperature", "0"), "--temperature"},
+		{with("--temperature", "-5"), "--temperature"},
+		{with("--density", "0"), "--density"},
+		{with("--mass-fractions", "Ca=1,Qq=2"), "--mass-fractions"},
+		{with("--mass-fractions", "Ca=0"), "--mass-fractions"},
+		{with("--from-um", "1.3"), "--from-um"},
+		{with("--to-um", "0.5"), "--to-um"},
+		{with("--bin-um", "0"), "--bin-um"},
+		{with("--bin-um", "1e-12"), "--bin-um"},
+		{with("--days", "0"), "--days"},
+		{with("--days", ""), "--days"},
+		{with("--lines", ""), "--lines"},
+		{with("--lines", lines+".missing"), "--lines"},
+		{with("--temperature", "inf"), "--temperature"},
+	} {
+		s, out, errs := runOpacityCmd(tc.args...)
+		if s != 2 || out != "" || strings.Count(errs, "\n") != 1 || !strings.Contains(errs, tc.flag) {
+			t.Errorf("%v: status %d, stdout %q, stderr %q; want 2, nothing, one line naming %s", tc.args[1:], s, out, errs, tc.flag)
+		}
+	}
+}
