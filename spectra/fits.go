@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"math/big"
+	"os"
 	"strconv"
 	"strings"
 
@@ -54,7 +55,7 @@ func ReadFITS(r io.Reader, opt ReadOptions) (*Spectrum, error) {
 	if max <= 0 {
 		max = defaultMaxFITS
 	}
-	data, err := io.ReadAll(io.LimitReader(r, max+1))
+	data, err := readAllBounded(r, max)
 	if err != nil {
 		return nil, &ParseError{File: opt.Name, HDU: -1, Err: err}
 	}
@@ -748,6 +749,11 @@ func (fr *fitsReader) table(idx int, meta Metadata) (*Spectrum, error) {
 			size = tc.col.width / tc.col.repeat
 		}
 		rowLen := h.axes[0]
+		if per == 1 {
+			// One value per row: a single strided pass.
+			decodeStrided(out, fr.data[h.dataStart+tc.col.offset:], int(rowLen), tc.col.code, tc.scale, tc.zero, tc.null, bad)
+			return out
+		}
 		var tmp []bool
 		if bad != nil {
 			tmp = make([]bool, per)
@@ -808,4 +814,76 @@ func (fr *fitsReader) table(idx int, meta Metadata) (*Spectrum, error) {
 		med = Air
 	}
 	return fr.finish(idx, meta, wave, flux, unc, bad, wc.unit, fc.unit, med, "binary table")
+}
+
+// decodeStrided decodes len(dst) values of type code, one every stride
+// bytes from the start of b, as decodeValues does for contiguous values.
+func decodeStrided(dst []float64, b []byte, stride int, code byte, scale, zero float64, blank *int64, bad []bool) {
+	be := binary.BigEndian
+	set := func(i int, raw int64) {
+		if blank != nil && raw == *blank {
+			dst[i] = math.NaN()
+			if bad != nil {
+				bad[i] = true
+			}
+			return
+		}
+		dst[i] = zero + scale*float64(raw)
+	}
+	for i := range dst {
+		p := b[i*stride:]
+		switch code {
+		case 'B':
+			set(i, int64(p[0]))
+		case 'L':
+			if p[0] == 'T' {
+				dst[i] = 1
+			} else {
+				dst[i] = 0
+			}
+		case 'I':
+			set(i, int64(int16(be.Uint16(p))))
+		case 'J':
+			set(i, int64(int32(be.Uint32(p))))
+		case 'K':
+			set(i, int64(be.Uint64(p)))
+		case 'E':
+			dst[i] = zero + scale*float64(math.Float32frombits(be.Uint32(p)))
+		case 'D':
+			dst[i] = zero + scale*math.Float64frombits(be.Uint64(p))
+		}
+	}
+}
+
+// readAllBounded reads r to the end, at most max+1 bytes. When r can tell
+// its size (a file, a bytes.Reader) the buffer is allocated once.
+func readAllBounded(r io.Reader, max int64) ([]byte, error) {
+	var size int64 = -1
+	switch v := r.(type) {
+	case interface{ Stat() (os.FileInfo, error) }:
+		if fi, err := v.Stat(); err == nil && fi.Mode().IsRegular() {
+			size = fi.Size()
+			if sk, ok := r.(io.Seeker); ok {
+				if pos, err := sk.Seek(0, io.SeekCurrent); err == nil {
+					size -= pos
+				}
+			}
+		}
+	case interface{ Len() int }:
+		size = int64(v.Len())
+	}
+	if size < 0 || size > max {
+		return io.ReadAll(io.LimitReader(r, max+1))
+	}
+	buf := make([]byte, size+1)
+	n, err := io.ReadFull(r, buf)
+	if err == io.ErrUnexpectedEOF || err == io.EOF {
+		return buf[:n], nil
+	}
+	if err != nil {
+		return nil, err
+	}
+	// The input grew past its stated size: read the rest normally.
+	rest, err := io.ReadAll(io.LimitReader(r, max+1-int64(n)))
+	return append(buf[:n], rest...), err
 }

@@ -28,5 +28,14 @@ func ReadFile(path string, opt ReadOptions) (*Spectrum, error) {
 	if opt.Name == "" {
 		opt.Name = path
 	}
-	return Read(f, opt)
+	// Sniff without buffering, so that ReadFITS sees the file (and its size).
+	head := make([]byte, 9)
+	n, _ := io.ReadFull(f, head)
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		return nil, fmt.Errorf("spectra: %w", err)
+	}
+	if string(head[:n]) == "SIMPLE  =" {
+		return ReadFITS(f, opt)
+	}
+	return ReadText(f, opt)
 }

@@ -47,6 +47,10 @@ func smooth(dst, dstU, wave, flux, unc []float64, resolvingPower float64, skip [
 	inv2s2 := 1 / (2 * sigLn * sigLn)
 	cut := math.Exp(gaussCut * sigLn)
 	edges := binEdges(nil, wave)
+	lw := make([]float64, n)
+	for i, w := range wave {
+		lw[i] = math.Log(w)
+	}
 	out := dst
 	if &dst[0] == &flux[0] {
 		out = make([]float64, n)
@@ -62,7 +66,7 @@ func smooth(dst, dstU, wave, flux, unc []float64, resolvingPower float64, skip [
 			if skip != nil && skip[j] {
 				continue
 			}
-			d := math.Log(wave[j] / wi)
+			d := lw[j] - lw[i]
 			w := math.Exp(-d*d*inv2s2) * (edges[j+1] - edges[j])
 			if n == 1 {
 				w = 1
