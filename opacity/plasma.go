@@ -65,7 +65,10 @@ func (e *ElementState) Species(j int) linelists.Species {
 type Plasma struct {
 	Temperature     float64 // K
 	Density         float64 // mass density, g cm⁻³
-	ElectronDensity float64 // cm⁻³
+	ElectronDensity float64 // cm⁻³; 0 when below the smallest float64
+	// LnElectronDensity is ln(n_e / cm⁻³), finite even where n_e
+	// underflows (a nearly neutral gas at tens of kelvin).
+	LnElectronDensity float64
 	// Iterations counts evaluations of the charge balance in the root
 	// solve, bracketing included.
 	Iterations int
@@ -219,13 +222,15 @@ func SolveAtoms(c Composition, rho, T float64, a Atoms) (*Plasma, error) {
 	}
 
 	// h(x) = x − ln Σ charges(x) rises strictly with x = ln n_e. At
-	// x_hi = ln(most electrons possible) h ≥ 0; below the root h falls
-	// like 2x, so stepping down by doubling distances finds h < 0.
+	// x_hi = ln(most electrons possible) h ≥ 0, and 1e-9 above it h > 0
+	// even after rounding (a fully ionised gas has its root at x_hi);
+	// below the root h falls like 2x, so stepping down by doubling
+	// distances finds h < 0.
 	h := func(x float64) float64 {
 		p.Iterations++
 		return x - lnCharges(work, x)
 	}
-	xhi := math.Log(maxElectrons)
+	xhi := math.Log(maxElectrons) + 1e-9
 	fhi := h(xhi)
 	var x float64
 	switch {
@@ -250,6 +255,7 @@ func SolveAtoms(c Composition, rho, T float64, a Atoms) (*Plasma, error) {
 		}
 	}
 	p.ElectronDensity = math.Exp(x)
+	p.LnElectronDensity = x
 	p.Residual = math.Abs(-math.Expm1(-(x - lnCharges(work, x))))
 	if !(p.Residual < 1e-8) {
 		return nil, fmt.Errorf("opacity: %w: relative charge residual %g (T = %g K, ρ = %g g cm⁻³)", ErrNotConverged, p.Residual, T, rho)

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"os"
 	"strconv"
 	"testing"
@@ -367,4 +368,69 @@ func TestSolveAtoms(t *testing.T) {
 	if u, _ := st.PartitionFunction(linelists.Species{Z: 20, Charge: 1}, 5000); e.Partition[1] != u {
 		t.Errorf("U(Ca II) = %v, the store's %v", e.Partition[1], u)
 	}
+}
+
+// TestSolveAlwaysConverges sweeps random compositions (1–30 elements of
+// Z ≤ 92), temperatures 10 K–10⁷ K and densities 1e-25–1e2 g cm⁻³ (seeded):
+// every solve must converge with a small residual and conserve nuclei and
+// charge. Covers the nearly neutral and fully ionised extremes and single
+// elements.
+func TestSolveAlwaysConverges(t *testing.T) {
+	r := rand.New(rand.NewPCG(4, 4))
+	n := 3000
+	if testing.Short() {
+		n = 300
+	}
+	maxIter := 0
+	for i := range n {
+		ne := 1 + r.IntN(30)
+		if i%5 == 0 {
+			ne = 1
+		}
+		var z []int
+		var w []float64
+		seen := map[int]bool{}
+		for len(z) < ne {
+			zi := 1 + r.IntN(92)
+			if seen[zi] {
+				continue
+			}
+			seen[zi] = true
+			z = append(z, zi)
+			w = append(w, math.Pow(10, -6*r.Float64()))
+		}
+		c, err := NewComposition(z, w)
+		if err != nil {
+			t.Fatal(err)
+		}
+		T := math.Pow(10, 1+6*r.Float64())
+		rho := math.Pow(10, -25+27*r.Float64())
+		p, err := Solve(c, rho, T, nil)
+		if err != nil {
+			t.Fatalf("%v at T = %g K, ρ = %g: %v", c, T, rho, err)
+		}
+		maxIter = max(maxIter, p.Iterations)
+		if math.IsInf(p.LnElectronDensity, 0) || math.IsNaN(p.LnElectronDensity) || !(p.Residual < 1e-10) ||
+			p.ElectronDensity != math.Exp(p.LnElectronDensity) {
+			t.Fatalf("%v at T = %g, ρ = %g: n_e = %g, residual %g", c, T, rho, p.ElectronDensity, p.Residual)
+		}
+		charge := 0.0
+		for k := range p.Elements {
+			e := &p.Elements[k]
+			s := 0.0
+			for j := 0; j < e.Stages; j++ {
+				s += e.Ion[j]
+				charge += float64(j) * e.Ion[j]
+			}
+			if !scalar.EqualWithinAbsOrRel(s, e.NumberDensity, 0, 1e-12) {
+				t.Fatalf("%v at T = %g, ρ = %g: Z=%d stages sum %g, N %g", c, T, rho, e.Z, s, e.NumberDensity)
+			}
+		}
+		// Σ charge is only representable when n_e is; it is, down to
+		// 1e-300, and below that the residual (in logs) already checks it.
+		if p.ElectronDensity > 1e-290 && !scalar.EqualWithinAbsOrRel(charge, p.ElectronDensity, 0, 1e-9) {
+			t.Fatalf("%v at T = %g, ρ = %g: Σ charge %g ≠ n_e %g", c, T, rho, charge, p.ElectronDensity)
+		}
+	}
+	t.Logf("at most %d evaluations of the charge balance", maxIter)
 }
