@@ -46,6 +46,17 @@
 //	Band{Lo, Hi float64; Name string}          // vacuum Å
 //	DefaultTelluricBands() []Band                // fresh, editable copy
 //
+// Reading, calibrating and preparing (see docs/spectra.md for formats and
+// methods):
+//
+//	Read, ReadFile, ReadText, ReadFITS (io.Reader + ReadOptions) → *Spectrum
+//	*ParseError{File, Line, Column, HDU, Offset, Err}; sentinels ErrSyntax,
+//	  ErrColumns, ErrOrder, ErrNoData, ErrUnsupported, ErrMalformed, ErrTooLarge
+//	AirToVacuum, VacuumToAir (Morton 2000), (*Spectrum).ConvertFlux,
+//	  ToRestFrame, Deredden, Extinction (CCM89, F99), MaskTelluric
+//	FitBlackbody → *BlackbodyFit (T, scale, radius, velocity), Normalize
+//	FindFeatures → []Feature (wavelength, depth, width, EW, significance)
+//
 // Smoothing to a resolving power R convolves with a Gaussian of FWHM λ/R
 // (constant in ln λ). Resampling treats each sample as constant over its
 // bin (edges half-way between samples) and conserves the integrated flux.
