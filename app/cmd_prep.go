@@ -87,7 +87,7 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 	fs.BoolVar(&f.normBB, "normalize-blackbody", false, "fit a blackbody continuum, report it and divide the spectrum by it")
 	fs.StringVar(&f.windows, "fit-windows", "", "fit the blackbody only in these rest-frame ranges, µm: 0.45-0.9,1.5-1.75")
 	fs.Float64Var(&f.distMpc, "distance-mpc", 0, "distance in Mpc, to turn the blackbody scale into a radius")
-	fs.Float64Var(&f.epoch, "epoch", 0, "time since explosion in days (observer frame), to turn the radius into a velocity")
+	fs.Float64Var(&f.epoch, "epoch", 0, "time since explosion in days (observer frame), to turn the radius into a velocity (default: the file's epoch, if any)")
 	fs.StringVar(&f.fluxOut, "flux-out", "", "convert the output flux to this unit: erg/s/cm2/A, erg/s/cm2/Hz, Jy, mJy")
 	fs.BoolVar(&f.features, "features", false, "find absorption features and report them")
 	fs.Float64Var(&f.featureR, "feature-resolving-power", 200, "smoothing for --features, resolving power (0: none)")
@@ -129,8 +129,12 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 	}
 	if f.fitBB || f.normBB {
 		bopt := spectra.BlackbodyFitOptions{Windows: windows, Distance: f.distMpc * spectra.Megaparsec}
-		if f.epoch > 0 {
-			bopt.Epoch = f.epoch / (1 + f.redshift)
+		epoch := f.epoch
+		if epoch == 0 && bopt.Distance > 0 {
+			epoch = s.Meta.Epoch // from the file's metadata, if it says
+		}
+		if epoch > 0 {
+			bopt.Epoch = epoch / (1 + f.redshift)
 		}
 		fit, err := spectra.FitBlackbody(s, bopt)
 		if err != nil {

@@ -98,6 +98,22 @@ func (m Medium) String() string {
 	return "vacuum"
 }
 
+// MarshalText writes "vacuum" or "air".
+func (m Medium) MarshalText() ([]byte, error) { return []byte(m.String()), nil }
+
+// UnmarshalText reads "vacuum" or "air".
+func (m *Medium) UnmarshalText(b []byte) error {
+	switch string(b) {
+	case "vacuum":
+		*m = Vacuum
+	case "air":
+		*m = Air
+	default:
+		return fmt.Errorf("spectra: unknown medium %q (want vacuum or air)", b)
+	}
+	return nil
+}
+
 // Metadata describes a spectrum. Zero values mean "unknown".
 type Metadata struct {
 	// Source names where the spectrum came from (a file name, "synthetic").

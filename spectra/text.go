@@ -326,7 +326,7 @@ func roleOf(base string) int {
 		return roleMask
 	case pre("wave", "wavelength", "lambda", "lam", "wl", "awav", "vwav", "wav", "loglam"):
 		return roleWave
-	case pre("flux", "f_lambda", "flam", "fnu", "f_nu", "fλ", "fν", "intensity", "spec", "counts", "f"):
+	case pre("flux", "f_lambda", "flam", "fnu", "f_nu", "fλ", "fν", "intensity", "spec", "counts") || b == "f":
 		return roleFlux
 	}
 	return roleNone

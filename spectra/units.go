@@ -83,16 +83,16 @@ func ParseFluxUnit(s string) (FluxUnit, error) {
 	case "fnu", "f_nu":
 		return FluxPerHz, nil
 	}
-	// Spelled-out cgs units: look for erg, s, cm2 and the denominator.
-	if strings.HasPrefix(k, "erg") {
-		tail := k
+	// Spelled-out cgs units ("erg/s/cm2/A", "erg s-1 cm-2 Angstrom-1",
+	// "erg / (Angstrom cm2 s)"): erg, s and cm² with Hz or Å.
+	if strings.HasPrefix(k, "erg") && strings.Contains(k, "cm") && strings.Contains(k, "s") {
 		switch {
-		case strings.HasSuffix(tail, "hz") || strings.HasSuffix(tail, "hz-1"):
+		case strings.Contains(k, "hz"):
 			return FluxPerHz, nil
-		case strings.HasSuffix(tail, "/a") || strings.HasSuffix(tail, "a-1") ||
-			strings.HasSuffix(tail, "angstrom") || strings.HasSuffix(tail, "angstrom-1") ||
-			strings.HasSuffix(tail, "å") || strings.HasSuffix(tail, "å-1") ||
-			strings.HasSuffix(tail, "aa") || strings.HasSuffix(tail, "aa-1"):
+		case strings.Contains(k, "angstrom") || strings.Contains(k, "å") ||
+			strings.HasSuffix(k, "/a") || strings.HasSuffix(k, "a-1") ||
+			strings.HasSuffix(k, "/aa") || strings.HasSuffix(k, "aa-1") ||
+			strings.HasPrefix(k, "erg/a"):
 			return FluxPerAngstrom, nil
 		}
 	}
