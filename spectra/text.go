@@ -520,9 +520,13 @@ func (t *textReader) row(s []byte) error {
 		}
 	}
 	if len(f) != t.ncol {
+		// Point at the first extra field, or at the last one present.
 		col := 1
-		if len(f) > 0 {
-			col = t.fieldCol[min(len(f), t.ncol)-1]
+		switch {
+		case len(f) > t.ncol:
+			col = t.fieldCol[t.ncol]
+		case len(f) > 0:
+			col = t.fieldCol[len(f)-1]
 		}
 		return t.errf(col, ErrColumns, "expected %d fields, found %d", t.ncol, len(f))
 	}

@@ -82,7 +82,7 @@ func TestReadTextErrors(t *testing.T) {
 	}{
 		{in: "1 2\n3 x\n", line: 2, col: 3, cause: ErrSyntax, msgHas: "flux"},
 		{in: "1,2\n3\n", line: 2, col: 1, cause: ErrColumns},
-		{in: "1 2\n3 4 5\n", line: 2, cause: ErrColumns},
+		{in: "1 2\n3 4 5\n", line: 2, col: 5, cause: ErrColumns},
 		{in: "1 2 3 4\n", line: 1, cause: ErrColumns, msgHas: "2 or 3"},
 		{in: "1 2\n3 4\n2 5\n", line: 3, col: 1, cause: ErrOrder},
 		{in: "1 2\n1 4\n", line: 2, cause: ErrOrder},
