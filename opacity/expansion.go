@@ -290,19 +290,44 @@ func (x *Expansion) Grey(from, to float64) (float64, error) {
 // sumFused returns Σ λ_l (1 − e^{−τ_l}) over a run of lines, adding each
 // term to acc[row[species]] and counting the lines of each species in hist,
 // with τ computed as in Sobolev: λ·gf·lev·stim. Lines of species not
-// modelled have lev = 0, so τ = 0, and go to the scratch row.
+// modelled have lev = 0, so τ = 0, and go to the scratch row. The bodies of
+// stimRun.factor and escape are written out here (the compiler does not
+// inline them, and the call and the spilled state cost a third of the
+// loop); TestExpansionLimits holds this copy to the functions.
 func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck float64, row []int32, acc []float64, hist []int) float64 {
+	const shifter = 0x1.8p52
 	sum := 0.0
 	gf = gf[:len(wl)]
 	sp = sp[:len(wl)]
 	lower = lower[:len(wl)]
-	var sr stimRun
-	sr.reset(hck)
+	xPrev, e, left := 0.0, 0.0, 0
 	for i, lam := range wl {
 		s := sp[i]
 		hist[s]++
-		tu := lam * gf[i] * lev[lower[i]] * sr.factor(lam)
-		w := lam * escape(tu)
+		// Stimulated emission, as stimRun.factor.
+		x := hck / lam
+		d := xPrev - x
+		if left > 0 && d >= 0 && d <= 1e-3 {
+			e *= 1 + d*(1+d*(1.0/2+d*(1.0/6+d*(1.0/24))))
+			left--
+		} else {
+			e = fastExp(-x)
+			left = stimRefresh
+		}
+		xPrev = x
+		stim := 1 - e
+		if x < 1e-3 {
+			stim = -math.Expm1(-x)
+		}
+		tu := lam * gf[i] * lev[lower[i]] * stim
+		// 1 − e^{−τ}, as escape.
+		y := max(-tu, -708)
+		kf := (y*(64/math.Ln2) + shifter) - shifter
+		k := int64(kf)
+		r := (y - kf*ln2Hi) - kf*ln2Lo
+		q := r * (1 + r*(1.0/2+r*(1.0/6+r*(1.0/24+r*(1.0/120)))))
+		sc := expTable[k&63] * math.Float64frombits(uint64((k>>6)+1023)<<52)
+		w := -lam * math.FMA(sc, q, sc-1)
 		sum += w
 		acc[row[s]] += w
 	}

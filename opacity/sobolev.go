@@ -38,7 +38,7 @@ func BoltzmannFactors(dst []float64, st *linelists.Store, T float64) []float64 {
 	dst = grow(dst, len(e))
 	beta := spectra.ElectronVolt / (spectra.Boltzmann * T) // 1/kT in eV⁻¹
 	for l, el := range e {
-		dst[l] = math.Exp(-el * beta)
+		dst[l] = fastExp(-el * beta)
 	}
 	return dst
 }
