@@ -46,6 +46,9 @@ func TestDemoFilesCurrent(t *testing.T) {
 		if !bytes.HasPrefix(lv, []byte("# INVENTED FOR DEMONSTRATION - NOT ATOMIC DATA")) {
 			t.Errorf("%s levels: header does not say it is invented", el.File)
 		}
+		if s.Len() > 20000 {
+			continue // reading back the big ones adds nothing but time
+		}
 		b := NewBuilder()
 		if _, err := b.Read(bytes.NewReader(got), ReadOptions{Name: path}); err != nil {
 			t.Fatal(err)

@@ -31,6 +31,11 @@ func FuzzRead(f *testing.F) {
 			opts.Import = &Import{Columns: cols, Species: Species{Z: 60, Charge: 1}}
 		}
 		s, _, err := Read(bytes.NewReader(data), opts)
+		opts.Workers = 2
+		s2, _, err2 := Read(bytes.NewReader(data), opts)
+		if (err == nil) != (err2 == nil) || err != nil && err.Error() != err2.Error() {
+			t.Fatalf("serial and parallel parses disagree: %v / %v", err, err2)
+		}
 		if err != nil {
 			var pe *ParseError
 			if !errors.As(err, &pe) {
@@ -39,6 +44,9 @@ func FuzzRead(f *testing.F) {
 			return
 		}
 		checkStore(t, s)
+		if s.Len() != s2.Len() {
+			t.Fatalf("serial %d lines, parallel %d", s.Len(), s2.Len())
+		}
 	})
 }
 

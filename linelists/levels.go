@@ -155,13 +155,13 @@ func (b *Builder) ReadLevels(r io.Reader, opts LevelsOptions) (LevelsReport, err
 			l.e = e
 			if colG >= 0 {
 				g, ok := parseFloat(fields[colG])
-				if !ok || !(g >= 1) || g > 1e4 || math.Abs(g-math.Round(g)) > 1e-6 {
+				if !ok || !(g >= 1) || g > maxLevelG || math.Abs(g-math.Round(g)) > 1e-6 {
 					return rep, perr(lineNo, colG+1, fmt.Errorf("%w: weight %q: want a whole number g = 2J+1 ≥ 1", ErrRange, truncate(fields[colG])))
 				}
 				l.g = float32(math.Round(g))
 			} else {
 				j, ok := parseFloat(fields[colJ])
-				if !ok || !(j >= 0) || j > 5000 || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
+				if !ok || !(j >= 0) || 2*j+1 > maxLevelG || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
 					return rep, perr(lineNo, colJ+1, fmt.Errorf("%w: J %q: want a whole or half-whole number ≥ 0", ErrRange, truncate(fields[colJ])))
 				}
 				l.g = float32(math.Round(2*j) + 1)

@@ -39,6 +39,9 @@ type Options struct {
 	Overrides string
 	// KeepDuplicates keeps duplicate lines (they are counted either way).
 	KeepDuplicates bool
+	// Workers is the number of goroutines parsing each text file (≤ 1:
+	// the calling goroutine); runtime.GOMAXPROCS(0) is a good choice.
+	Workers int
 	// Cache selects the cache mode.
 	Cache CacheMode
 	// CacheDir, when set, holds the caches; otherwise a cache is written
@@ -170,7 +173,7 @@ func parseFile(path string, opts *Options) (*Store, FileReport, error) {
 	defer f.Close()
 	b := NewBuilder()
 	b.KeepDuplicates = opts.KeepDuplicates
-	fr, err := b.Read(f, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium, Species: opts.Species})
+	fr, err := b.Read(f, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium, Species: opts.Species, Workers: opts.Workers})
 	if err != nil {
 		return nil, fr, err
 	}

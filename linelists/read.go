@@ -39,6 +39,9 @@ type ReadOptions struct {
 	Species Species
 	// Filter selects lines; the others are skipped and counted.
 	Filter Filter
+	// Workers is the number of goroutines that parse rows; ≤ 1 parses in
+	// the calling goroutine. The result is the same either way.
+	Workers int
 }
 
 // Filter selects lines by wavelength, species and strength. The zero value
@@ -175,7 +178,6 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 			haveHeader = true
 		}
 	}
-	var sc speciesCache
 	wantSpecies := speciesSet(opts.Filter.Species)
 	medium := MediumDefault
 	started := false
@@ -266,42 +268,22 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 			}
 			continue
 		}
-		fields, err = splitFields(fields[:0], line, comma)
-		if err != nil {
-			return fr, perr(lineNo, 0, err)
+		// The first data row: from here on the rows are parsed in chunks
+		// (by opts.Workers goroutines), this one first.
+		rp := &rowParser{cm: cm, fixed: fixed, medium: medium, comma: comma, filter: &opts.Filter, want: wantSpecies, name: opts.Name}
+		var res chunkResult
+		rp.parseLine(line, lineNo, &res)
+		if res.err != nil {
+			return fr, res.err
 		}
-		if cm.nfields > 0 && len(fields) != cm.nfields {
-			return fr, perr(lineNo, 0, fmt.Errorf("%w: %d fields, the header names %d", ErrFieldCount, len(fields), cm.nfields))
-		}
-		if len(fields) <= cm.maxCol {
-			return fr, perr(lineNo, 0, fmt.Errorf("%w: %d fields, the column mapping needs at least %d", ErrFieldCount, len(fields), cm.maxCol+1))
-		}
-		fr.Rows++
-		l, col, perrc := parseRow(fields, &cm, fixed, &sc)
-		if perrc != nil {
-			return fr, perr(lineNo, col+1, perrc)
-		}
-		if medium == Air {
-			l.Wavelength = airToVacuum(l.Wavelength)
-		}
-		if f := &opts.Filter; f.active() {
-			switch {
-			case f.MinWavelength > 0 && l.Wavelength < f.MinWavelength, f.MaxWavelength > 0 && l.Wavelength > f.MaxWavelength:
-				fr.Skipped.Wavelength++
-				continue
-			case wantSpecies != nil && !wantSpecies[l.Species]:
-				fr.Skipped.Species++
-				continue
-			case f.HasMinLogGF && l.LogGF < f.MinLogGF:
-				fr.Skipped.Strength++
-				continue
-			}
-		}
-		b.Add(l)
-		fr.Added++
+		b.addChunk(&res, &fr)
 		if err == io.EOF {
 			break
 		}
+		if err := b.readRows(br, lineNo, rp, opts.Name, opts.Workers, &fr); err != nil {
+			return fr, err
+		}
+		break
 	}
 	if !haveHeader {
 		return fr, perr(lineNo, 0, fmt.Errorf("%w: no header row naming the columns (want e.g. \"wavelength_A species log_gf lower_energy_eV\")", ErrHeader))
@@ -635,8 +617,8 @@ func parseWeight(fields [][]byte, cm *colMap, fg, fj Field, which string) (float
 		if !ok {
 			return 0, c, numErr(fields[c], "a "+which+" level weight g")
 		}
-		if !(g >= 1) || g > 1e4 || math.Abs(g-math.Round(g)) > 1e-6 {
-			return 0, c, fmt.Errorf("%w: %s level weight %q: want a whole number g = 2J+1 ≥ 1", ErrRange, which, fields[c])
+		if !(g >= 1) || g > maxLevelG || math.Abs(g-math.Round(g)) > 1e-6 {
+			return 0, c, fmt.Errorf("%w: %s level weight %q: want a whole number g = 2J+1 from 1 to 10000", ErrRange, which, fields[c])
 		}
 		return float32(math.Round(g)), -1, nil
 	}
@@ -648,8 +630,8 @@ func parseWeight(fields [][]byte, cm *colMap, fg, fj Field, which string) (float
 		if !ok {
 			return 0, c, numErr(fields[c], "a "+which+" level J")
 		}
-		if !(j >= 0) || j > 5000 || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
-			return 0, c, fmt.Errorf("%w: %s level J %q: want a whole or half-whole number ≥ 0", ErrRange, which, fields[c])
+		if !(j >= 0) || 2*j+1 > maxLevelG || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
+			return 0, c, fmt.Errorf("%w: %s level J %q: want a whole or half-whole number from 0 to 4999.5", ErrRange, which, fields[c])
 		}
 		return float32(math.Round(2*j) + 1), -1, nil
 	}
