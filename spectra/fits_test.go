@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"testing"
@@ -23,6 +24,8 @@ type fitsRef struct {
 	Airmass     float64   `json:"airmass"`
 	Date        string    `json:"date"`
 	Bad         []int     `json:"bad"`
+	Null        []int     `json:"null"`
+	NullFile    []int     `json:"null_file_order"`
 }
 
 func loadFITSRef(t *testing.T) map[string]fitsRef {
@@ -37,7 +40,7 @@ func loadFITSRef(t *testing.T) map[string]fitsRef {
 	if err := json.Unmarshal(raw, &ref); err != nil {
 		t.Fatal(err)
 	}
-	if len(ref.Files) < 7 {
+	if len(ref.Files) < 9 {
 		t.Fatalf("reference has %d files", len(ref.Files))
 	}
 	return ref.Files
@@ -82,8 +85,27 @@ func TestReadFITSAgainstAstropy(t *testing.T) {
 		if s.Meta.OriginalMedium != wantMed {
 			t.Errorf("%s: medium %v, want %v", name, s.Meta.OriginalMedium, wantMed)
 		}
+		// The reference is in file order; a descending file is reversed.
+		n := len(ref.Flux)
+		at := func(i int) int { return i }
+		if n > 1 && ref.Wavelength[0] > ref.Wavelength[n-1] {
+			at = func(i int) int { return n - 1 - i }
+		}
+		// Samples flagged by the file: a quality column (bad) or a null
+		// value (BLANK/TNULL, also NaN).
+		bad, null := map[int]bool{}, map[int]bool{}
+		for _, b := range ref.Bad {
+			bad[b] = true
+		}
+		for _, b := range ref.Null {
+			bad[b], null[b] = true, true
+		}
+		for _, b := range ref.NullFile {
+			bad[at(b)], null[at(b)] = true, true
+		}
 		for i := range ref.Flux {
-			w := s.Wavelength[i]
+			j := at(i)
+			w := s.Wavelength[j]
 			if wantMed == Air {
 				w = VacuumToAir(w)
 			}
@@ -91,27 +113,34 @@ func TestReadFITSAgainstAstropy(t *testing.T) {
 				t.Errorf("%s: λ[%d] = %.12g Å, astropy %.12g", name, i, w, want)
 				break
 			}
+			if null[j] {
+				// A null (BLANK/TNULL) value: kept, flagged, NaN.
+				if !math.IsNaN(s.Flux[j]) || s.Mask[j]&MaskFile == 0 {
+					t.Errorf("%s: null sample %d: flux %v mask %v", name, j, s.Flux[j], s.Mask[j])
+				}
+				continue
+			}
 			// Fluxes stored as float32 or scaled integers: astropy computes the
 			// scaling in float32 for 16-bit data, so allow float32 rounding.
-			if !scalar.EqualWithinAbsOrRel(s.Flux[i], ref.Flux[i], 1e-30, 1e-6) {
-				t.Errorf("%s: flux[%d] = %.9g, astropy %.9g", name, i, s.Flux[i], ref.Flux[i])
+			if !scalar.EqualWithinAbsOrRel(s.Flux[j], ref.Flux[i], 1e-30, 1e-6) {
+				t.Errorf("%s: flux[%d] = %.9g, astropy %.9g", name, i, s.Flux[j], ref.Flux[i])
 				break
 			}
-			if ref.Uncertainty != nil && !scalar.EqualWithinAbsOrRel(s.Uncertainty[i], ref.Uncertainty[i], 1e-30, 1e-6) {
-				t.Errorf("%s: σ[%d] = %.9g, astropy %.9g", name, i, s.Uncertainty[i], ref.Uncertainty[i])
+			if ref.Uncertainty != nil && !scalar.EqualWithinAbsOrRel(s.Uncertainty[j], ref.Uncertainty[i], 1e-30, 1e-6) {
+				t.Errorf("%s: σ[%d] = %.9g, astropy %.9g", name, i, s.Uncertainty[j], ref.Uncertainty[i])
 				break
 			}
 		}
 		if ref.Uncertainty == nil && s.Uncertainty != nil {
 			t.Errorf("%s: unexpected uncertainty", name)
 		}
-		for _, b := range ref.Bad {
+		for b := range bad {
 			if s.Mask == nil || s.Mask[b]&MaskFile == 0 {
-				t.Errorf("%s: sample %d not flagged by the file's quality column", name, b)
+				t.Errorf("%s: sample %d not flagged by the file", name, b)
 			}
 		}
-		if got := s.CountMasked(MaskFile); got != len(ref.Bad) {
-			t.Errorf("%s: %d samples flagged, want %d", name, got, len(ref.Bad))
+		if got := s.CountMasked(MaskFile); got != len(bad) {
+			t.Errorf("%s: %d samples flagged, want %d", name, got, len(bad))
 		}
 		if ref.Object != "" && (s.Meta.Object != ref.Object || s.Meta.Exposure != ref.Exptime ||
 			s.Meta.Airmass != ref.Airmass || s.Meta.Date != ref.Date) {

@@ -171,7 +171,44 @@ t = fits.BinTableHDU.from_columns([
 add("table_vector_air.fits", fits.HDUList([fits.PrimaryHDU(), t]), wave,
     flux.astype(np.float32).astype(float), extra={"medium": "air", "unit": "Angstrom", "ref_wave_unit": "Angstrom"})
 
-# 8. A larger noisy file for the blackbody fit is made by gen_blackbody.py, not here.
+# 8. Primary int16 image with BLANK pixels and BSCALE/BZERO, descending wavelengths
+#    (negative CDELT1). astropy returns NaN for BLANK pixels when it scales.
+n = 30
+stored = (np.arange(n, dtype=np.int16) * 100 - 1000).astype(">i2")
+blank_idx = [4, 11]
+stored[blank_idx] = -32768
+h = fits.PrimaryHDU(stored)
+h.header["BSCALE"] = 0.01
+h.header["BZERO"] = 50.0
+h.header["BLANK"] = -32768
+h.header["CTYPE1"] = "WAVE"
+h.header["CUNIT1"] = "Angstrom"
+h.header["CRVAL1"] = 9000.0
+h.header["CDELT1"] = -4.0
+h.header["CRPIX1"] = 1.0
+h.writeto("image_int16_blank.fits", overwrite=True, output_verify="exception")
+with fits.open("image_int16_blank.fits") as f:
+    d = f[0].data.astype(float)
+    wave = world(f[0].header, n)
+ref["files"]["image_int16_blank.fits"] = {
+    # Stored in file order (descending); BLANK pixels carry 0 here (JSON has no NaN).
+    "wavelength": [float(x) for x in wave], "flux": [0.0 if np.isnan(x) else float(x) for x in d],
+    "medium": "vacuum", "unit": "Angstrom", "ref_wave_unit": "m", "null_file_order": blank_idx,
+    "nan_in_astropy": [int(i) for i in np.where(np.isnan(d))[0]], "n_hdu": 1}
+
+# 9. Binary table with a 32-bit integer flux column with TNULL, and 64-bit wavelengths.
+n = 12
+wave_k = np.arange(n, dtype=np.int64) * 5 + 20000      # Å, K format
+flux_j = np.arange(n, dtype=np.int32) * 7 + 100
+null_idx = [0, 6]
+flux_j[null_idx] = -999
+t = fits.BinTableHDU.from_columns([
+    fits.Column(name="WAVELENGTH", format="K", unit="Angstrom", array=wave_k),
+    fits.Column(name="FLUX", format="J", null=-999, array=flux_j),
+])
+add("table_tnull.fits", fits.HDUList([fits.PrimaryHDU(), t]), wave_k.astype(float),
+    [0.0 if i in null_idx else float(v) for i, v in enumerate(flux_j)],
+    extra={"medium": "vacuum", "unit": "Angstrom", "ref_wave_unit": "Angstrom", "null": null_idx})
 
 with open("fits_reference.json", "w") as f:
     json.dump(ref, f, indent=1)
