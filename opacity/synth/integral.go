@@ -171,22 +171,17 @@ func resonanceZ(d Doppler, q, b, zmax float64) (float64, bool) {
 		z := 1 - q
 		return z, z >= -zmax && z <= zmax
 	}
-	// q = (1 − z)/√(1 − b² − z²) decreases with z for the velocities allowed.
-	f := func(z float64) float64 { return (1-z)/math.Sqrt(1-b*b-z*z) - q }
-	lo, hi := -zmax, zmax
-	flo, fhi := f(lo), f(hi)
-	if flo < 0 || fhi > 0 {
+	// q = γ(1 − z) with γ = (1 − b² − z²)^{−1/2}: squaring gives
+	// (1 + q²) z² − 2z + 1 − q²(1 − b²) = 0, whose smaller root is the
+	// physical one (for b = 0 it is the relativistic Doppler velocity
+	// (1 − q²)/(1 + q²)).
+	q2 := q * q
+	disc := 1 - (1+q2)*(1-q2*(1-b*b))
+	if disc < 0 {
 		return 0, false
 	}
-	for range 60 {
-		mid := 0.5 * (lo + hi)
-		if f(mid) > 0 {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
-	return 0.5 * (lo + hi), true
+	z := (1 - math.Sqrt(disc)) / (1 + q2)
+	return z, z >= -zmax && z <= zmax
 }
 
 // buildRays returns the rays of the formal integral for an envelope on a grid
