@@ -28,7 +28,7 @@ type prepFlags struct {
 	air, vacuum, maskTelluric, normBB, fitBB, jsonOut, features bool
 	redshift, ebv, rv, resPower, inputRes, distMpc, epoch       float64
 	law, waveUnit, fluxUnit, fluxOut, waveCol, fluxCol          string
-	uncCol, windows, hdu                                        string
+	uncCol, windows, hdu, tellBands, userMask                   string
 	featureR, featureSig                                        float64
 }
 
@@ -81,6 +81,8 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 	fs.Float64Var(&f.rv, "rv", 3.1, "R_V of the extinction law")
 	fs.StringVar(&f.law, "law", "ccm89", "extinction law: ccm89 or f99")
 	fs.BoolVar(&f.maskTelluric, "mask-telluric", false, "flag the default telluric bands (observer frame); samples are kept")
+	fs.StringVar(&f.tellBands, "telluric-bands", "", "with --mask-telluric: use these observer-frame bands instead of the defaults, µm: 0.759-0.770,1.35-1.45")
+	fs.StringVar(&f.userMask, "mask", "", "flag these observer-frame ranges as excluded by the user, µm: 1.05-1.07,2.2-2.3")
 	fs.Float64Var(&f.resPower, "resolving-power", 0, "smooth with a Gaussian to this resolving power λ/Δλ (0: no smoothing)")
 	fs.Float64Var(&f.inputRes, "input-resolving-power", 0, "the spectrum's own resolving power, if known (0: treat as unresolved)")
 	fs.BoolVar(&f.fitBB, "fit-blackbody", false, "fit a blackbody continuum and report it (without normalising)")
@@ -104,6 +106,17 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
+	tell, err := parseMicronRanges("--telluric-bands", f.tellBands)
+	if err != nil {
+		return err
+	}
+	if tell != nil && !f.maskTelluric {
+		return usagef("prep: --telluric-bands needs --mask-telluric")
+	}
+	user, err := parseMicronRanges("--mask", f.userMask)
+	if err != nil {
+		return err
+	}
 	s, err := spectra.ReadFile(pos[0], opt)
 	if err != nil {
 		return err
@@ -115,7 +128,16 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	if f.maskTelluric {
-		s.MaskTelluric()
+		if tell == nil {
+			s.MaskTelluric()
+		} else {
+			n := s.MaskBands(tell, spectra.MaskTelluric)
+			s.Meta.History = append(s.Meta.History, fmt.Sprintf("masked %d samples in %d telluric bands given by the user", n, len(tell)))
+		}
+	}
+	if user != nil {
+		n := s.MaskBands(user, spectra.MaskUser)
+		s.Meta.History = append(s.Meta.History, fmt.Sprintf("masked %d samples in %d ranges given by the user", n, len(user)))
 	}
 	if f.redshift != 0 {
 		if err := s.ToRestFrame(f.redshift); err != nil {
@@ -274,17 +296,9 @@ func (f *prepFlags) check() (spectra.ReadOptions, spectra.ExtinctionLaw, []spect
 	if f.featureSig <= 0 || f.featureR < 0 {
 		return opt, 0, nil, usagef("prep: --feature-significance must be > 0 and --feature-resolving-power ≥ 0")
 	}
-	var windows []spectra.Band
-	if f.windows != "" {
-		for _, part := range strings.Split(f.windows, ",") {
-			lo, hi, ok := strings.Cut(strings.TrimSpace(part), "-")
-			a, err1 := strconv.ParseFloat(strings.TrimSpace(lo), 64)
-			b, err2 := strconv.ParseFloat(strings.TrimSpace(hi), 64)
-			if !ok || err1 != nil || err2 != nil || !(a > 0) || !(b > a) || math.IsInf(b, 0) {
-				return opt, 0, nil, usagef("prep: --fit-windows: %q is not a range LO-HI in µm with 0 < LO < HI", part)
-			}
-			windows = append(windows, spectra.Band{Lo: a * 1e4, Hi: b * 1e4})
-		}
+	windows, err := parseMicronRanges("--fit-windows", f.windows)
+	if err != nil {
+		return opt, 0, nil, err
 	}
 	return opt, law, windows, nil
 }
@@ -373,4 +387,22 @@ func writePrepText(w *bytes.Buffer, r *prepReport) {
 				f.Wavelength/1e4, f.Depth, f.DepthErr, f.Width/1e4, f.EquivalentWidth, f.Significance)
 		}
 	}
+}
+
+// parseMicronRanges reads "LO-HI,LO-HI" in µm into bands in Å; "" gives nil.
+func parseMicronRanges(flagName, v string) ([]spectra.Band, error) {
+	if v == "" {
+		return nil, nil
+	}
+	var out []spectra.Band
+	for _, part := range strings.Split(v, ",") {
+		lo, hi, ok := strings.Cut(strings.TrimSpace(part), "-")
+		a, err1 := strconv.ParseFloat(strings.TrimSpace(lo), 64)
+		b, err2 := strconv.ParseFloat(strings.TrimSpace(hi), 64)
+		if !ok || err1 != nil || err2 != nil || !(a > 0) || !(b > a) || math.IsInf(b, 0) {
+			return nil, usagef("prep: %s: %q is not a range LO-HI in µm with 0 < LO < HI", flagName, part)
+		}
+		out = append(out, spectra.Band{Lo: a * 1e4, Hi: b * 1e4})
+	}
+	return out, nil
 }

@@ -170,6 +170,8 @@ func TestPrepUsageErrors(t *testing.T) {
 		{p, "--fit-windows", "0.5-0.4", "--fit-blackbody"},
 		{p, "--flux-out", "furlongs"},
 		{p, "--hdu", "x"},
+		{p, "--telluric-bands", "0.7-0.8"},
+		{p, "--mask", "1-x"},
 		{p, "--bogus"},
 	} {
 		st, out, errs := runPrepArgs(t, args...)
@@ -214,5 +216,20 @@ func TestPrepSmoothAndFeatures(t *testing.T) {
 	}
 	if n := len(parsePrepCSV(t, out)); n != 2001 {
 		t.Errorf("%d rows", n)
+	}
+}
+
+// TestPrepUserBands: user telluric bands replace the defaults and user
+// masks flag samples as "user"; nothing is deleted.
+func TestPrepUserBands(t *testing.T) {
+	p := writeTemp(t, "s.txt", "7600 1\n9500 2\n10500 3\n")
+	st, out, errs := runPrepArgs(t, p, "--mask-telluric", "--telluric-bands", "1.04-1.06", "--mask", "0.75-0.77")
+	if st != 0 {
+		t.Fatalf("status %d: %s", st, errs)
+	}
+	rows := parsePrepCSV(t, out)
+	// 7600 Å: user; 9500 Å: in a default band but not in the user's list; 10500 Å: telluric.
+	if len(rows) != 3 || rows[0].mask != int(spectra.MaskUser) || rows[1].mask != 0 || rows[2].mask != int(spectra.MaskTelluric) {
+		t.Errorf("rows %+v", rows)
 	}
 }
