@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 
 	"broadline/linelists"
@@ -147,6 +148,7 @@ func (f *linesFlags) options() (linelists.Options, error) {
 	}
 	o.Overrides = f.overrides
 	o.KeepDuplicates = f.keepDup
+	o.Workers = runtime.GOMAXPROCS(0)
 	if f.noCache {
 		o.Cache = linelists.CacheOff
 	}

@@ -97,6 +97,14 @@ func NewBuilder() *Builder {
 	return &Builder{spIdx: map[Species]uint16{}, lvIdx: map[levelKey]uint32{}}
 }
 
+// reserve makes room for n more lines.
+func (b *Builder) reserve(n int) {
+	b.wl = slices.Grow(b.wl, n)
+	b.lgf = slices.Grow(b.lgf, n)
+	b.sp = slices.Grow(b.sp, n)
+	b.lo = slices.Grow(b.lo, n)
+}
+
 // Len returns the number of lines added so far.
 func (b *Builder) Len() int { return len(b.wl) }
 

@@ -90,6 +90,9 @@ func (rp *rowParser) parseLine(line []byte, lineNo int, res *chunkResult) {
 // parseChunk parses a block of whole lines whose first line is number
 // first.
 func (rp *rowParser) parseChunk(data []byte, first int, res *chunkResult) {
+	if res.lines == nil {
+		res.lines = make([]Line, 0, len(data)/32+16) // rows are rarely shorter
+	}
 	lineNo := first - 1
 	for len(data) > 0 {
 		var line []byte
@@ -139,20 +142,24 @@ func (b *Builder) readRows(r io.Reader, lastLine int, rp *rowParser, name string
 	next := chunker(r, lastLine+1, name)
 	if workers <= 1 {
 		p := rp.clone()
+		var lines []Line // reused from chunk to chunk
 		for {
 			job, ok := next()
 			if !ok {
 				return nil
 			}
 			if job.res.err == nil {
+				job.res.lines = lines[:0]
 				p.parseChunk(job.data, job.first, &job.res)
 			}
 			if job.res.err != nil {
 				return job.res.err
 			}
 			b.addChunk(&job.res, fr)
+			lines = job.res.lines
 		}
 	}
+	var pool sync.Pool // []Line buffers returned after use
 	order := make(chan *chunkJob, 2*workers)
 	jobs := make(chan *chunkJob, workers)
 	var stop atomic.Bool
@@ -179,6 +186,9 @@ func (b *Builder) readRows(r io.Reader, lastLine int, rp *rowParser, name string
 			defer wg.Done()
 			p := rp.clone()
 			for job := range jobs {
+				if buf, ok := pool.Get().(*[]Line); ok {
+					job.res.lines = (*buf)[:0]
+				}
 				p.parseChunk(job.data, job.first, &job.res)
 				close(job.done)
 			}
@@ -196,6 +206,8 @@ func (b *Builder) readRows(r io.Reader, lastLine int, rp *rowParser, name string
 			continue
 		}
 		b.addChunk(&job.res, fr)
+		buf := job.res.lines
+		pool.Put(&buf)
 		job.res.lines = nil
 	}
 	wg.Wait()

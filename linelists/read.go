@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"os"
 	"strconv"
 	"strings"
 	"unsafe"
@@ -159,6 +160,10 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 		}
 		defer zr.Close()
 		br = bufio.NewReaderSize(zr, maxLineLength)
+	} else if n := inputSize(r); n > 0 {
+		// Room for the lines, estimated from the input's size (rows of
+		// our format are rarely under 40 bytes); appends grow it if not.
+		b.reserve(int(min(n/40, 1<<30)))
 	}
 	imp := opts.Import
 	fileMedium := MediumDefault
@@ -296,6 +301,21 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 	}
 	fr.Medium = medium
 	return fr, nil
+}
+
+// inputSize returns the number of bytes r holds when that is cheap to
+// know (an in-memory reader or a regular file), else 0.
+func inputSize(r io.Reader) int64 {
+	switch v := r.(type) {
+	case interface{ Len() int }:
+		return int64(v.Len())
+	case *os.File:
+		if fi, err := v.Stat(); err == nil && fi.Mode().IsRegular() {
+			off, _ := v.Seek(0, io.SeekCurrent)
+			return fi.Size() - off
+		}
+	}
+	return 0
 }
 
 func pickMedium(file Medium, opts ReadOptions, imp *Import) (Medium, error) {
