@@ -290,10 +290,11 @@ func (x *Expansion) Grey(from, to float64) (float64, error) {
 // sumFused returns Σ λ_l (1 − e^{−τ_l}) over a run of lines, adding each
 // term to acc[row[species]] and counting the lines of each species in hist,
 // with τ computed as in Sobolev: λ·gf·lev·stim. Lines of species not
-// modelled have lev = 0, so τ = 0, and go to the scratch row. The bodies of
-// stimRun.factor and escape are written out here (the compiler does not
-// inline them, and the call and the spilled state cost a third of the
-// loop); TestExpansionLimits holds this copy to the functions.
+// modelled have lev = 0, so τ = 0, and go to the scratch row. The
+// stimulated-emission step (see stimRefresh) and escape are written out here
+// (the compiler does not inline them, and the calls and the spilled state
+// cost a third of the loop); the tests hold the result to the formula
+// evaluated directly.
 func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck float64, row []int32, acc []float64, hist []int) float64 {
 	const shifter = 0x1.8p52
 	sum := 0.0
@@ -304,7 +305,7 @@ func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck 
 	for i, lam := range wl {
 		s := sp[i]
 		hist[s]++
-		// Stimulated emission, as stimRun.factor.
+		// Stimulated emission, carried along (see stimRefresh).
 		x := hck / lam
 		d := xPrev - x
 		if left > 0 && d >= 0 && d <= 1e-3 {
@@ -334,38 +335,14 @@ func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck 
 	return sum
 }
 
-// stimRun evaluates the stimulated-emission factor 1 − e^{−x}, x = hc/λkT,
-// along wavelengths that ascend, with one exponential per stimRefresh lines:
-// from one line to the next e^{−x} is multiplied by e^{d}, d = x_prev − x,
-// taken from its Taylor series to d⁴ when 0 ≤ d ≤ 10⁻³ (truncation
-// < d⁵/120 ≈ 1e-17); a larger step, a descent or the refresh count takes a
-// fresh exponential. The rounding drift over stimRefresh steps stays below
-// about 1e-13 relative.
-type stimRun struct {
-	hck, x, e float64
-	left      int
-}
-
+// stimRefresh bounds the run of lines over which the stimulated-emission
+// factor 1 − e^{−x}, x = hc/λkT, is carried along ascending wavelengths
+// instead of recomputed: from one line to the next e^{−x} is multiplied by
+// e^{d}, d = x_prev − x, from its Taylor series to d⁴ when 0 ≤ d ≤ 10⁻³
+// (truncation < d⁵/120 ≈ 1e-17); a larger step, a descent or the end of a
+// run takes a fresh exponential. The rounding drift over a run stays below
+// about 1e-13 relative. For x < 10⁻³ the factor is −expm1(−x).
 const stimRefresh = 1024
-
-func (s *stimRun) reset(hck float64) { *s = stimRun{hck: hck} }
-
-func (s *stimRun) factor(lam float64) float64 {
-	x := s.hck / lam
-	d := s.x - x
-	if s.left > 0 && d >= 0 && d <= 1e-3 {
-		s.e *= 1 + d*(1+d*(1.0/2+d*(1.0/6+d*(1.0/24))))
-		s.left--
-	} else {
-		s.e = fastExp(-x)
-		s.left = stimRefresh
-	}
-	s.x = x
-	if x < 1e-3 {
-		return -math.Expm1(-x)
-	}
-	return 1 - s.e
-}
 
 // sumGiven is sumFused for optical depths already computed.
 func sumGiven(tau, wl []float64, sp []uint16, row []int32, acc []float64, hist []int) float64 {

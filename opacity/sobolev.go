@@ -112,7 +112,7 @@ func Sobolev(ctx context.Context, dst []float64, st *linelists.Store, levelDensi
 // Sobolev is the package-level Sobolev for prepared lines. The per-level
 // factors are computed once per level; per line it takes three products and
 // the stimulated-emission factor, carried from line to line along the
-// sorted wavelengths (relative accuracy ~1e-13; see stimRun).
+// sorted wavelengths (relative accuracy ~1e-13; see stimRefresh).
 func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []float64, T, t float64, workers int) error {
 	st := ls.Store
 	n := checkStore(st)
@@ -130,10 +130,25 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 	return parallel(ctx, n, workers, func(lo, hi int) {
 		wl, gf, lower := st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi]
 		out := dst[lo:hi]
-		var sr stimRun
-		sr.reset(hck)
+		gf, lower, out = gf[:len(wl)], lower[:len(wl)], out[:len(wl)]
+		xPrev, e, left := 0.0, 0.0, 0
 		for i, lam := range wl {
-			out[i] = lam * gf[i] * lev[lower[i]] * sr.factor(lam)
+			// Stimulated emission, carried along (see stimRefresh).
+			x := hck / lam
+			d := xPrev - x
+			if left > 0 && d >= 0 && d <= 1e-3 {
+				e *= 1 + d*(1+d*(1.0/2+d*(1.0/6+d*(1.0/24))))
+				left--
+			} else {
+				e = fastExp(-x)
+				left = stimRefresh
+			}
+			xPrev = x
+			stim := 1 - e
+			if x < 1e-3 {
+				stim = -math.Expm1(-x)
+			}
+			out[i] = lam * gf[i] * lev[lower[i]] * stim
 		}
 	})
 }

@@ -150,3 +150,49 @@ func TestSobolevMatchesDirect(t *testing.T) {
 		t.Errorf("t = 0: %v", err)
 	}
 }
+
+// TestDenseStore exercises the stimulated-emission factor carried from line
+// to line (steps of ~0.1 Å, where it is not recomputed, over runs of up to
+// 1024 lines): Sobolev depths against the formula evaluated directly, and
+// the fused expansion opacity against binning those direct depths.
+func TestDenseStore(t *testing.T) {
+	n := 400_000
+	if testing.Short() {
+		n = 100_000
+	}
+	st := randomStore(n, speciesOf("Ca", "Sr"), 50, 9)
+	p, err := Solve(mustComp(t, "Ca=0.5,Sr=0.5"), 1e-13, 4500, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	tau := make([]float64, st.Len())
+	if err := Sobolev(ctx, tau, st, PlasmaLevelDensities(nil, st, p), p.Temperature, spectra.Day, 2); err != nil {
+		t.Fatal(err)
+	}
+	direct := make([]float64, st.Len())
+	worst := 0.0
+	for i := range tau {
+		direct[i] = directTau(st, p, i, spectra.Day)
+		rel := math.Abs(tau[i]-direct[i]) / direct[i]
+		worst = max(worst, rel)
+		if rel > 1e-12 {
+			t.Fatalf("line %d (%.3f Å): τ = %.15g, direct %.15g", i, st.Wavelength[i], tau[i], direct[i])
+		}
+	}
+	t.Logf("worst relative error of τ: %g", worst)
+	g := must(LinearGrid(3000, 25000, 50))
+	a, err := ExpansionOpacity(ctx, st, p, spectra.Day, g, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := ExpansionFromDepths(ctx, st, direct, p, spectra.Day, g, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := range a.Kappa {
+		if !scalar.EqualWithinAbsOrRel(a.Kappa[k], b.Kappa[k], 1e-300, 1e-12) {
+			t.Errorf("bin %d: fused κ %.15g, from direct depths %.15g", k, a.Kappa[k], b.Kappa[k])
+		}
+	}
+}
