@@ -254,12 +254,20 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 // PlanckMean returns the Planck-mean opacity over the grid at temperature T
 // (K), in cm² g⁻¹: Σ_k κ_k ∫_bin B_λ dλ / Σ_k ∫_bin B_λ dλ. The average is
 // over the grid's range only, not over all wavelengths; each bin's integral
-// of B_λ is by 8-point Gauss–Legendre quadrature.
+// of B_λ is by 8-point Gauss–Legendre quadrature. It is NaN where B_λ
+// underflows over the whole grid (T of a few kelvin in the optical).
 func (x *Expansion) PlanckMean(T float64) float64 {
+	var nodes, weights [8]float64
+	quad.Legendre{}.FixedLocations(nodes[:], weights[:], -1, 1)
 	num, den := 0.0, 0.0
-	b := func(lam float64) float64 { return spectra.PlanckLambda(lam, T) }
 	for k, kap := range x.Kappa {
-		w := quad.Fixed(b, x.Grid.Edges[k], x.Grid.Edges[k+1], 8, nil, 0)
+		a, b := x.Grid.Edges[k], x.Grid.Edges[k+1]
+		mid, half := 0.5*(a+b), 0.5*(b-a)
+		w := 0.0
+		for i, u := range nodes {
+			w += weights[i] * spectra.PlanckLambda(mid+half*u, T)
+		}
+		w *= half
 		num += kap * w
 		den += w
 	}
