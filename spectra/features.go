@@ -25,7 +25,8 @@ type FeatureOptions struct {
 // again (the topographic prominence of the dip).
 type Feature struct {
 	// Wavelength of the minimum (vacuum Å), the vertex of a weighted
-	// parabola fitted to the samples below half depth.
+	// parabola fitted to the samples below half depth (kept only if it lies
+	// within the half-depth width and not in a hole of the grid).
 	Wavelength float64
 	// Depth is 1 − F_min/F_continuum at the minimum; DepthErr its 1σ error.
 	Depth, DepthErr float64
@@ -79,6 +80,8 @@ func FindFeatures(s *Spectrum, opt FeatureOptions) ([]Feature, error) {
 		}
 	}
 	if opt.ResolvingPower > 0 {
+		x, y, e = prebin(x, y, e, opt.ResolvingPower)
+		n = len(x)
 		ys := make([]float64, n)
 		es := make([]float64, n)
 		smooth(ys, es, x, y, e, opt.ResolvingPower, nil)
@@ -138,7 +141,7 @@ func FindFeatures(s *Spectrum, opt FeatureOptions) ([]Feature, error) {
 		// Minimum: a weighted least-squares parabola through the samples
 		// below half depth (less noise-biased than the lowest sample).
 		xm, ym := x[i], y[i]
-		if px, py, ok := parabolaVertex(x[kl:kr+1], y[kl:kr+1], e[kl:kr+1]); ok && px > xl && px < xr && py <= cont(i) {
+		if px, py, ok := parabolaVertex(x[kl:kr+1], y[kl:kr+1], e[kl:kr+1]); ok && px > xl && px < xr && py <= cont(i) && !inHole(x[kl:kr+1], px) {
 			xm, ym = px, py
 		}
 		f.Wavelength = xm
@@ -238,4 +241,70 @@ func parabolaVertex(x, y, e []float64) (xv, yv float64, ok bool) {
 	}
 	xv = -b / (2 * c)
 	return x0 + xv, a + b*xv + c*xv*xv, true
+}
+
+// prebin makes smoothing to resolving power r cheap on grids much finer
+// than the kernel: when the median spacing in ln λ is below a sixth of the
+// kernel's σ, the samples are averaged (flux-conserving, uncertainties
+// propagated) onto a grid uniform in ln λ with a step of σ/3, which widens
+// the kernel by less than 0.5 %. Bins that contain no original sample
+// (gaps left by masked data) are dropped rather than filled.
+func prebin(x, y, e []float64, r float64) (bx, by, be []float64) {
+	n := len(x)
+	step := fwhmToSigma / r / 3
+	d := make([]float64, n-1)
+	for i := 1; i < n; i++ {
+		d[i-1] = math.Log(x[i] / x[i-1])
+	}
+	if median(d) >= step/2 {
+		return x, y, e
+	}
+	m := int(math.Log(x[n-1]/x[0])/step) + 1
+	if m < 5 {
+		return x, y, e
+	}
+	grid := LogGrid(x[0], x[n-1], m)
+	rs := newResampler(grid, x)
+	j := 0
+	rs.each(func(i int, parts []overlap) {
+		lo, hi := rs.outEdges[i], rs.outEdges[i+1]
+		for j < n && x[j] < lo {
+			j++
+		}
+		if j >= n || x[j] > hi {
+			return // no original sample in this bin: a gap
+		}
+		var sw, sf, sv float64
+		for _, p := range parts {
+			sw += p.width
+			sf += p.width * y[p.j]
+			q := p.width * e[p.j]
+			sv += q * q
+		}
+		if sw > 0 {
+			bx = append(bx, grid[i])
+			by = append(by, sf/sw)
+			be = append(be, math.Sqrt(sv)/sw)
+		}
+	})
+	return bx, by, be
+}
+
+// inHole reports whether p falls between two samples of x spaced more than
+// three times the median spacing (a hole left by masked data).
+func inHole(x []float64, p float64) bool {
+	if len(x) < 2 {
+		return false
+	}
+	d := make([]float64, len(x)-1)
+	for k := range d {
+		d[k] = x[k+1] - x[k]
+	}
+	med := median(d)
+	for k := range d {
+		if p >= x[k] && p <= x[k+1] {
+			return d[k] > 3*med
+		}
+	}
+	return false
 }

@@ -15,8 +15,9 @@ const gaussCut = 4.0
 // Gaussian whose FWHM is λ/R at each wavelength (constant in ln λ, as for a
 // spectrograph of resolving power R), writing the result to dst (allocated
 // when nil, else it must have len(wave)) and returning it. The kernel is cut
-// at ±4σ and each neighbour is weighted by its bin width, so uneven grids
-// are handled; the weights are renormalised near the ends. skip, when not
+// at ±4σ and each neighbour is weighted by its spacing (the smaller of the
+// gaps to its neighbours), so uneven grids and holes are handled; the
+// weights are renormalised near the ends. skip, when not
 // nil, marks samples to leave out of every average (their own output is
 // still computed from their neighbours). R ≤ 0 or +Inf copies flux. It
 // panics on mismatched lengths.
@@ -46,7 +47,22 @@ func smooth(dst, dstU, wave, flux, unc []float64, resolvingPower float64, skip [
 	sigLn := fwhmToSigma / resolvingPower // σ in ln λ
 	inv2s2 := 1 / (2 * sigLn * sigLn)
 	cut := math.Exp(gaussCut * sigLn)
-	edges := binEdges(nil, wave)
+	// Each neighbour is weighted by its spacing: the smaller of the gaps to
+	// its two neighbours, so that a sample next to a hole in the grid (masked
+	// data left out) does not stand for the whole hole.
+	width := make([]float64, n)
+	for j := range wave {
+		switch {
+		case n == 1:
+			width[j] = 1
+		case j == 0:
+			width[j] = wave[1] - wave[0]
+		case j == n-1:
+			width[j] = wave[j] - wave[j-1]
+		default:
+			width[j] = math.Min(wave[j]-wave[j-1], wave[j+1]-wave[j])
+		}
+	}
 	lw := make([]float64, n)
 	for i, w := range wave {
 		lw[i] = math.Log(w)
@@ -67,10 +83,7 @@ func smooth(dst, dstU, wave, flux, unc []float64, resolvingPower float64, skip [
 				continue
 			}
 			d := lw[j] - lw[i]
-			w := math.Exp(-d*d*inv2s2) * (edges[j+1] - edges[j])
-			if n == 1 {
-				w = 1
-			}
+			w := math.Exp(-d*d*inv2s2) * width[j]
 			sw += w
 			sf += w * flux[j]
 			if unc != nil {
