@@ -110,3 +110,24 @@ func BenchmarkSmooth(b *testing.B) {
 	}
 	b.ReportMetric(float64(len(w))*float64(b.N)/b.Elapsed().Seconds(), "samples/s")
 }
+
+// BenchmarkFindFeatures1M finds features in a 1-million-sample spectrum
+// smoothed to R = 200 (pre-binned first).
+func BenchmarkFindFeatures1M(b *testing.B) {
+	w := LinearGrid(4000, 24000, benchN)
+	f := make([]float64, benchN)
+	u := make([]float64, benchN)
+	for i, x := range w {
+		z := (x - 12000) / 300
+		f[i] = 1 - 0.3*math.Exp(-0.5*z*z) + 0.01*math.Sin(float64(i))
+		u[i] = 0.01
+	}
+	s, _ := New(w, f, u, Metadata{FluxUnit: FluxNormalized})
+	for b.Loop() {
+		fs, err := FindFeatures(s, FeatureOptions{ResolvingPower: 200})
+		if err != nil || len(fs) == 0 {
+			b.Fatal(err)
+		}
+	}
+	b.ReportMetric(float64(benchN)*float64(b.N)/b.Elapsed().Seconds(), "samples/s")
+}
