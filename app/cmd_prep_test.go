@@ -179,6 +179,9 @@ func TestPrepUsageErrors(t *testing.T) {
 			t.Errorf("%v: status %d, stdout %q, stderr %q; want 2, nothing, one line", args, st, out, errs)
 		}
 	}
+	if st, out, errs := runPrepArgs(t, "-h"); st != 0 || out != "" || !strings.Contains(errs, "--normalize-blackbody") {
+		t.Errorf("-h: status %d, stdout %q, stderr %q", st, out, errs)
+	}
 	// Bad data: a failure (1) naming file:line, and no partial output.
 	bad := writeTemp(t, "bad.txt", "1000 1\n1001 x\n")
 	st, out, errs := runPrepArgs(t, bad)

@@ -25,10 +25,9 @@ type ReadOptions struct {
 	// (case-insensitive) or by 1-based number. Empty: found by name.
 	// UncColumn "none" ignores any uncertainty column.
 	WaveColumn, FluxColumn, UncColumn string
-	// HDU chooses the FITS header-data unit (0 = primary). Negative or
-	// zero value with Auto: the first HDU holding a 1-D spectrum.
-	HDU int
-	// HDUSet says HDU was chosen by the user (otherwise the reader finds it).
+	// HDU chooses the FITS header-data unit (0 = primary) when HDUSet is
+	// true; otherwise the reader takes the first HDU holding a 1-D spectrum.
+	HDU    int
 	HDUSet bool
 	// MaxBytes bounds how much a FITS reader reads from its input
 	// (default 1 GiB); a larger input is ErrTooLarge.
