@@ -59,8 +59,12 @@ type partValue struct {
 	complete bool
 }
 
-// maxCachedTemperatures bounds the strength cache; it is cleared when full.
-const maxCachedTemperatures = 64
+// The strength cache is cleared when it would hold more than
+// maxCachedTemperatures tables or maxCacheBytes bytes.
+const (
+	maxCachedTemperatures = 64
+	maxCacheBytes         = 512 << 20
+)
 
 // NewModel prepares a model for line store st and observed vacuum
 // wavelengths [from, to] Å on a logarithmic grid of spacing step in ln λ
@@ -171,7 +175,11 @@ func (m *Model) strengthTableFor(ctx context.Context, T float64, lo, hi, workers
 		return nil, fmt.Errorf("synth: binning lines: %w", err)
 	}
 	m.mu.Lock()
-	if len(m.strengths) >= maxCachedTemperatures {
+	bytes := 0
+	for _, t := range m.strengths {
+		bytes += 8 * len(t.S)
+	}
+	if len(m.strengths) >= maxCachedTemperatures || bytes+8*len(tab.S) > maxCacheBytes {
 		clear(m.strengths)
 	}
 	m.strengths[key] = tab
@@ -249,6 +257,10 @@ type state struct {
 	sf      [][]float64 // N_ion/U per store species, per node
 	tables  []*strengthTable
 	stim    [][]float64 // 1 − e^{−hc/λkT} per bin, per node
+	// With a temperature varying across nodes: per node, per element of
+	// elemZ, the bins' Σ (N_ion/U) g f λ e^{−E/kT} (tables is then nil).
+	elem  [][]float64
+	elemZ []int
 	scale   float64     // (π e²/mₑc) · 1e-8 · t
 	species []linelists.Species
 }
@@ -266,7 +278,10 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 	if err := env.Validate(); err != nil {
 		return nil, err
 	}
-	g := ej.BetaMax
+	// The line-bin range covers every line that can act on the observed
+	// range for outer velocities up to max(v_max, rangeBeta), so that moving
+	// v_max below that does not invalidate the cached strengths.
+	g := math.Max(ej.BetaMax, rangeBeta)
 	lo := int(math.Floor(-math.Log((1+g)/math.Sqrt(1-g*g))/m.step)) - 2
 	hi := m.nObs + int(math.Ceil(-math.Log(1-g)/m.step)) + 2
 	s := &state{env: env, lo: lo, hi: hi, scale: spectra.ClassicalLineCrossSection * spectra.Angstrom * ej.Time,
@@ -281,11 +296,13 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 		}
 		s.plasma = append(s.plasma, p)
 		s.sf = append(s.sf, opacity.SpeciesFactors(nil, m.store, p))
-		tab, err := m.strengthTableFor(ctx, T, lo, hi, set.Workers)
-		if err != nil {
-			return nil, err
+		if !ej.Diluted {
+			tab, err := m.strengthTableFor(ctx, T, lo, hi, set.Workers)
+			if err != nil {
+				return nil, err
+			}
+			s.tables = append(s.tables, tab)
 		}
-		s.tables = append(s.tables, tab)
 		st := make([]float64, hi-lo)
 		for b := range st {
 			lam := m.from * math.Exp(float64(lo+b)*m.step)
@@ -293,7 +310,60 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 		}
 		s.stim = append(s.stim, st)
 	}
+	if ej.Diluted {
+		if err := m.binByElement(ctx, s, comp, ej, set.Workers); err != nil {
+			return nil, err
+		}
+	}
 	return s, nil
+}
+
+// rangeBeta is the outer velocity (fraction of c) up to which the line-bin
+// range does not depend on v_max.
+const rangeBeta = 0.5
+
+// binByElement fills s.elem for a temperature that varies from node to node
+// (the diluted law): per node and per element of comp, the summed
+// (N_ion/U) g f λ e^{−E/kT} of its lines in each bin. Each node needs its own
+// Boltzmann factors, so these tables depend on the composition and are not
+// cached; grouping by element rather than species keeps them small. Nodes are
+// computed in parallel, each in line order.
+func (m *Model) binByElement(ctx context.Context, s *state, comp opacity.Composition, ej Ejecta, workers int) error {
+	st := m.store
+	elem := make([]int, len(st.SpeciesTable)) // species → index in comp.Z, or −1
+	for i, sp := range st.SpeciesTable {
+		elem[i] = -1
+		for e, z := range comp.Z {
+			if int(sp.Z) == z {
+				elem[i] = e
+			}
+		}
+	}
+	nb := s.hi - s.lo
+	first, last := searchIdx(m.gidx, int32(s.lo)), searchIdx(m.gidx, int32(s.hi))
+	s.elemZ = comp.Z
+	s.elem = make([][]float64, s.env.Nodes)
+	forEach(s.env.Nodes, workers, func(k int) {
+		if ctx.Err() != nil {
+			return
+		}
+		boltz := opacity.BoltzmannFactors(nil, st, ej.TemperatureAt(s.env.Node(k)))
+		sf := s.sf[k]
+		S := make([]float64, len(comp.Z)*nb)
+		gidx, gfl, sp, lower := m.gidx, m.gfl, st.Species, st.Lower
+		for l := first; l < last; l++ {
+			e := elem[sp[l]]
+			if e < 0 {
+				continue
+			}
+			S[e*nb+int(gidx[l])-s.lo] += sf[sp[l]] * gfl[l] * boltz[lower[l]]
+		}
+		s.elem[k] = S
+	})
+	if err := ctx.Err(); err != nil {
+		return fmt.Errorf("synth: binning lines: %w", err)
+	}
+	return nil
 }
 
 // tau combines the binned strengths into optical depths, leaving out the
@@ -303,6 +373,22 @@ func (s *state) tau(m *Model, skip func(linelists.Species) bool) *Tau {
 	t := &Tau{Grid: g, Env: s.env, Values: make([]float64, g.N*s.env.Nodes)}
 	for k := range s.env.Nodes {
 		dst := t.Node(k)
+		if s.elem != nil {
+			nb := g.N
+			for e, z := range s.elemZ {
+				if skip != nil && skip(linelists.Species{Z: uint8(z)}) {
+					continue
+				}
+				row := s.elem[k][e*nb : (e+1)*nb]
+				for b, v := range row {
+					dst[b] += s.scale * v
+				}
+			}
+			for b, st := range s.stim[k] {
+				dst[b] *= st
+			}
+			continue
+		}
 		tab := s.tables[k]
 		for sp, f := range s.sf[k] {
 			if f == 0 || (skip != nil && skip(s.species[sp])) {

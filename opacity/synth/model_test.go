@@ -109,28 +109,35 @@ func TestBinnedDepths(t *testing.T) {
 		t.Fatal(err)
 	}
 	comp, _ := opacity.ParseComposition("Ca=0.2,Sr=0.3,Nd=0.5")
-	ej := testEjecta()
-	ej.Diluted = true
-	s, err := m.prepare(context.Background(), comp, ej, Settings{Nodes: 5})
-	if err != nil {
-		t.Fatal(err)
-	}
-	tau := s.tau(m, nil)
-	for k := range 5 {
-		p := s.plasma[k]
-		lev := opacity.PlasmaLevelDensities(nil, st, p)
-		per := make([]float64, st.Len())
-		if err := opacity.Sobolev(context.Background(), per, st, lev, p.Temperature, ej.Time, 1); err != nil {
+	for _, diluted := range []bool{false, true} {
+		ej := testEjecta()
+		ej.Diluted = diluted
+		s, err := m.prepare(context.Background(), comp, ej, Settings{Nodes: 5})
+		if err != nil {
 			t.Fatal(err)
 		}
-		want := make([]float64, tau.Grid.N)
-		for l, v := range per {
-			want[tau.Grid.Nearest(st.Wavelength[l])] += v
-		}
-		got := tau.Node(k)
-		for b := range want {
-			if !scalar.EqualWithinAbsOrRel(got[b], want[b], 1e-300, 2e-4) {
-				t.Fatalf("node %d bin %d: binned τ %g, Sobolev sum %g", k, b, got[b], want[b])
+		for _, without := range []int{0, 38} {
+			tau := s.tau(m, func(sp linelists.Species) bool { return int(sp.Z) == without })
+			for k := range 5 {
+				p := s.plasma[k]
+				lev := opacity.PlasmaLevelDensities(nil, st, p)
+				per := make([]float64, st.Len())
+				if err := opacity.Sobolev(context.Background(), per, st, lev, p.Temperature, ej.Time, 1); err != nil {
+					t.Fatal(err)
+				}
+				want := make([]float64, tau.Grid.N)
+				for l, v := range per {
+					if int(st.SpeciesTable[st.Species[l]].Z) != without {
+						want[tau.Grid.Nearest(st.Wavelength[l])] += v
+					}
+				}
+				got := tau.Node(k)
+				for b := range want {
+					if !scalar.EqualWithinAbsOrRel(got[b], want[b], 1e-300, 2e-4) {
+						t.Fatalf("diluted=%v without Z=%d node %d bin %d: binned τ %g, Sobolev sum %g",
+							diluted, without, k, b, got[b], want[b])
+					}
+				}
 			}
 		}
 	}

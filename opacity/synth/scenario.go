@@ -69,6 +69,9 @@ type Epoch struct {
 	SNR float64 `json:"snr"`
 }
 
+// maxPixels bounds the pixels of a scenario's instrument.
+const maxPixels = 1 << 22
+
 // ReadScenario decodes and checks a scenario.
 func ReadScenario(r io.Reader) (*Scenario, error) {
 	var s Scenario
@@ -95,16 +98,29 @@ func (s *Scenario) Validate() error {
 	if !(s.DistanceMpc > 0) || !(s.ModelFromUm > 0) || !(s.ModelToUm > s.ModelFromUm) {
 		return fmt.Errorf("synth: scenario: distance and model range must be positive")
 	}
+	if len(s.Epochs) > 1000 || len(s.LineFiles)+len(s.LevelFiles) > 10000 {
+		return fmt.Errorf("synth: scenario: %d epochs and %d files is more than a scenario holds", len(s.Epochs), len(s.LineFiles)+len(s.LevelFiles))
+	}
+	if s.ModelToUm/s.ModelFromUm > 1000 || math.IsInf(s.ModelToUm, 0) {
+		return fmt.Errorf("synth: scenario: model range %g–%g µm spans more than a factor 1000", s.ModelFromUm, s.ModelToUm)
+	}
 	in := s.Instrument
+	if !(in.ResolvingPower <= 1e6) || !(in.PixelsPerResolution <= 100) || !(in.NoiseFactor >= 0) {
+		return fmt.Errorf("synth: scenario: instrument R %g, %g pixels per resolution element, noise factor %g out of range",
+			in.ResolvingPower, in.PixelsPerResolution, in.NoiseFactor)
+	}
 	if !(in.ResolvingPower > 0) || !(in.PixelsPerResolution > 0) || !(in.FromUm >= s.ModelFromUm) || !(in.ToUm <= s.ModelToUm) || !(in.ToUm > in.FromUm) {
 		return fmt.Errorf("synth: scenario: instrument range %g–%g µm must lie inside the model's %g–%g µm, with R and sampling > 0",
 			in.FromUm, in.ToUm, s.ModelFromUm, s.ModelToUm)
+	}
+	if n := math.Log(in.ToUm/in.FromUm) * in.ResolvingPower * in.PixelsPerResolution; n > maxPixels {
+		return fmt.Errorf("synth: scenario: the instrument would have %.3g pixels (at most %d)", n, maxPixels)
 	}
 	for i, e := range s.Epochs {
 		if err := s.Ejecta(i).Validate(); err != nil {
 			return fmt.Errorf("synth: scenario epoch %d: %w", i+1, err)
 		}
-		if !(e.SNR > 0) || e.File == "" {
+		if !(e.SNR > 0) || math.IsInf(e.SNR, 0) || e.File == "" {
 			return fmt.Errorf("synth: scenario epoch %d: needs a file name and SNR > 0", i+1)
 		}
 	}
