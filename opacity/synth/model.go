@@ -251,17 +251,17 @@ func (r *Result) AtDistance(d float64) []float64 {
 
 // state is the per-call plasma and binned strengths shared by knock-outs.
 type state struct {
-	env     Envelope
-	lo, hi  int // global line-bin range
-	plasma  []*opacity.Plasma
-	sf      [][]float64 // N_ion/U per store species, per node
-	tables  []*strengthTable
-	stim    [][]float64 // 1 − e^{−hc/λkT} per bin, per node
+	env    Envelope
+	lo, hi int // global line-bin range
+	plasma []*opacity.Plasma
+	sf     [][]float64 // N_ion/U per store species, per node
+	tables []*strengthTable
+	stim   [][]float64 // 1 − e^{−hc/λkT} per bin, per node
 	// With a temperature varying across nodes: per node, per element of
 	// elemZ, the bins' Σ (N_ion/U) g f λ e^{−E/kT} (tables is then nil).
-	elem  [][]float64
-	elemZ []int
-	scale   float64     // (π e²/mₑc) · 1e-8 · t
+	elem    [][]float64
+	elemZ   []int
+	scale   float64 // (π e²/mₑc) · 1e-8 · t
 	species []linelists.Species
 }
 
