@@ -31,10 +31,10 @@ const maxOpacityBins = 10_000_000
 func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet(c, stderr)
 	pf := addPlasmaFlags(fs, "line-list `FILE` (required; repeatable, or comma-separated)")
-	days := fs.Float64("days", math.NaN(), "time since explosion in days (> 0)")
-	from := fs.Float64("from-um", math.NaN(), "start of the first bin, µm (vacuum)")
-	to := fs.Float64("to-um", math.NaN(), "end of the range, µm (vacuum); the last bin may reach past it")
-	bin := fs.Float64("bin-um", math.NaN(), "bin width, µm; a line at λ belongs to the bin [edge_k, edge_k+1)")
+	daysF := floatFlag(fs, "days", "time since explosion `D` in days (required, > 0)")
+	fromF := floatFlag(fs, "from-um", "start `UM` of the first bin, µm, vacuum (required)")
+	toF := floatFlag(fs, "to-um", "end `UM` of the range, µm, vacuum (required); the last bin may reach past it")
+	binF := floatFlag(fs, "bin-um", "bin width `UM` in µm (required); a line at λ belongs to the bin [edge_k, edge_k+1)")
 	pos, err := fs.parse(args)
 	if err != nil {
 		return err
@@ -42,6 +42,9 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	if len(pos) > 0 {
 		return usagef("unexpected argument %q (give several files as --lines A --lines B, or --lines A,B)", pos[0])
 	}
+
+	d, f, t, w := daysF.value(), fromF.value(), toF.value(), binF.value()
+	days, from, to, bin := &d, &f, &t, &w
 
 	// Every value is checked before any file is read.
 	if len(pf.lines) == 0 {
@@ -85,7 +88,7 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	p, err := opacity.SolveAtoms(comp, *pf.density, *pf.temp, opacity.StoreAtoms(st))
+	p, err := opacity.SolveAtoms(comp, pf.density.value(), pf.temp.value(), opacity.StoreAtoms(st))
 	if err != nil {
 		return err
 	}

@@ -9,6 +9,7 @@ import (
 	"io/fs"
 	"math"
 	"os"
+	"strconv"
 	"strings"
 
 	"broadline/linelists"
@@ -40,10 +41,48 @@ func (l *fileList) Set(s string) error {
 	return nil
 }
 
+// requiredFloat is a float flag without a default: unset until given, so
+// that a missing value is reported by name (and help shows no "NaN").
+type requiredFloat struct {
+	v   float64
+	set bool
+}
+
+func (f *requiredFloat) String() string {
+	if f == nil || !f.set {
+		return ""
+	}
+	return strconv.FormatFloat(f.v, 'g', -1, 64)
+}
+
+func (f *requiredFloat) Set(s string) error {
+	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	if err != nil {
+		return fmt.Errorf("%q is not a number", s)
+	}
+	f.v, f.set = v, true
+	return nil
+}
+
+// value returns the flag's value, or NaN when it was not given.
+func (f *requiredFloat) value() float64 {
+	if !f.set {
+		return math.NaN()
+	}
+	return f.v
+}
+
+// floatFlag defines a requiredFloat flag and returns it.
+func floatFlag(fs *flagSet, name, usage string) *requiredFloat {
+	f := &requiredFloat{}
+	fs.Var(f, name, usage)
+	return f
+}
+
 // plasmaFlags are the flags plasma and opacity share: the thermodynamic
 // state, the composition and the atomic-data files.
 type plasmaFlags struct {
-	temp, density *float64
+	temp, density *requiredFloat
 	fracs         *string
 	lines, levels fileList
 	overrides     *string
@@ -51,9 +90,9 @@ type plasmaFlags struct {
 
 func addPlasmaFlags(fs *flagSet, linesUsage string) *plasmaFlags {
 	p := &plasmaFlags{}
-	p.temp = fs.Float64("temperature", math.NaN(), "temperature in K (> 0)")
-	p.density = fs.Float64("density", math.NaN(), "mass density in g cm⁻³ (> 0)")
-	p.fracs = fs.String("mass-fractions", "", "element mass fractions, e.g. \"Ca=0.4,Sr=0.3,Nd=0.3\" (any positive weights; normalised)")
+	p.temp = floatFlag(fs, "temperature", "temperature in `K` (required, > 0)")
+	p.density = floatFlag(fs, "density", "mass density `G_CM3` in g cm⁻³ (required, > 0)")
+	p.fracs = fs.String("mass-fractions", "", "element mass fractions `LIST`, e.g. \"Ca=0.4,Sr=0.3,Nd=0.3\" (required; any positive weights, normalised)")
 	fs.Var(&p.lines, "lines", linesUsage)
 	fs.Var(&p.levels, "levels", "levels `FILE` for the partition functions (repeatable, or comma-separated)")
 	p.overrides = fs.String("overrides", "", "`FILE` of ionisation energies and ground weights replacing the element table's")
@@ -65,7 +104,7 @@ func (p *plasmaFlags) check() (opacity.Composition, error) {
 	for _, f := range []struct {
 		name, what string
 		v          float64
-	}{{"temperature", "temperature in K", *p.temp}, {"density", "mass density in g cm⁻³", *p.density}} {
+	}{{"temperature", "temperature in K", p.temp.value()}, {"density", "mass density in g cm⁻³", p.density.value()}} {
 		if math.IsNaN(f.v) {
 			return opacity.Composition{}, usagef("--%s is required (%s)", f.name, f.what)
 		}
@@ -213,7 +252,7 @@ func runPlasma(c *command, args []string, stdout, stderr io.Writer) error {
 			source = "summed over the levels the line lists name (lower bounds), per species as partition_source says"
 		}
 	}
-	p, err := opacity.SolveAtoms(comp, *pf.density, *pf.temp, atoms)
+	p, err := opacity.SolveAtoms(comp, pf.density.value(), pf.temp.value(), atoms)
 	if err != nil {
 		return err
 	}
