@@ -43,9 +43,6 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 		return usagef("unexpected argument %q (give several files as --lines A --lines B, or --lines A,B)", pos[0])
 	}
 
-	d, f, t, w := daysF.value(), fromF.value(), toF.value(), binF.value()
-	days, from, to, bin := &d, &f, &t, &w
-
 	// Every value is checked before any file is read.
 	if len(pf.lines) == 0 {
 		return usagef("--lines: at least one line-list file is needed")
@@ -54,32 +51,25 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	if math.IsNaN(*days) {
-		return usagef("--days is required (time since explosion in days)")
-	}
-	if !(*days > 0) || math.IsInf(*days, 0) {
-		return usagef("--days %g: want a positive, finite time in days", *days)
-	}
 	for _, f := range []struct {
-		name string
-		v    float64
-	}{{"from-um", *from}, {"to-um", *to}, {"bin-um", *bin}} {
-		if math.IsNaN(f.v) {
-			return usagef("--%s is required (µm)", f.name)
-		}
-		if !(f.v > 0) || math.IsInf(f.v, 0) {
-			return usagef("--%s %g: want a positive, finite wavelength in µm", f.name, f.v)
+		name, what string
+		v          *requiredFloat
+	}{{"days", "time since explosion in days", daysF}, {"from-um", "wavelength in µm", fromF},
+		{"to-um", "wavelength in µm", toF}, {"bin-um", "bin width in µm", binF}} {
+		if err := f.v.positive(f.name, f.what); err != nil {
+			return err
 		}
 	}
-	if !(*to > *from) {
-		return usagef("--from-um %g --to-um %g: empty range (want from < to)", *from, *to)
+	days, from, to, bin := daysF.value(), fromF.value(), toF.value(), binF.value()
+	if !(to > from) {
+		return usagef("--from-um %g --to-um %g: empty range (want from < to)", from, to)
 	}
-	if n := math.Ceil((*to - *from) / *bin); n > maxOpacityBins {
-		return usagef("--bin-um %g: %g bins in %g–%g µm (at most %d)", *bin, n, *from, *to, maxOpacityBins)
+	if n := math.Ceil((to - from) / bin); n > maxOpacityBins {
+		return usagef("--bin-um %g: %g bins in %g–%g µm (at most %d)", bin, n, from, to, maxOpacityBins)
 	}
-	grid, err := opacity.LinearGrid(*from*1e4, *to*1e4, *bin*1e4)
+	grid, err := opacity.LinearGrid(from*1e4, to*1e4, bin*1e4)
 	if err != nil {
-		return usagef("--bin-um %g: %v", *bin, err)
+		return usagef("--bin-um %g: %v", bin, err)
 	}
 	lo, hi := grid.Edges[0], grid.Edges[grid.Bins()]
 
@@ -93,7 +83,7 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	workers := runtime.GOMAXPROCS(0)
-	x, err := opacity.ExpansionOpacity(context.Background(), st, p, *days*spectra.Day, grid, workers)
+	x, err := opacity.ExpansionOpacity(context.Background(), st, p, days*spectra.Day, grid, workers)
 	if err != nil {
 		return err
 	}
@@ -122,7 +112,7 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	grey, _ := x.Grey(lo, hi)
 	fmt.Fprintf(stderr, "opacity: %d lines in %d bins of %g µm from %g µm (%d outside the bins skipped, %d of elements or stages not modelled); "+
 		"n_e = %.4g cm⁻³; grey κ = %.4g and Planck-mean κ = %.4g cm² g⁻¹ over %g–%g µm at %g K\n",
-		x.Lines, grid.Bins(), *bin, *from, rep.Skipped.Wavelength, x.Unmodelled, p.ElectronDensity,
+		x.Lines, grid.Bins(), bin, from, rep.Skipped.Wavelength, x.Unmodelled, p.ElectronDensity,
 		grey, x.PlanckMean(p.Temperature), lo*1e-4, hi*1e-4, p.Temperature)
 	for _, w := range rep.Warnings {
 		fmt.Fprintln(stderr, "opacity: warning:", w)

@@ -72,6 +72,18 @@ func (f *requiredFloat) value() float64 {
 	return f.v
 }
 
+// positive checks that the flag was given and is positive and finite; the
+// error names the flag.
+func (f *requiredFloat) positive(name, what string) error {
+	if !f.set {
+		return usagef("--%s is required (%s)", name, what)
+	}
+	if !(f.v > 0) || math.IsInf(f.v, 0) {
+		return usagef("--%s %g: want a positive, finite %s", name, f.v, what)
+	}
+	return nil
+}
+
 // floatFlag defines a requiredFloat flag and returns it.
 func floatFlag(fs *flagSet, name, usage string) *requiredFloat {
 	f := &requiredFloat{}
@@ -103,13 +115,10 @@ func addPlasmaFlags(fs *flagSet, linesUsage string) *plasmaFlags {
 func (p *plasmaFlags) check() (opacity.Composition, error) {
 	for _, f := range []struct {
 		name, what string
-		v          float64
-	}{{"temperature", "temperature in K", p.temp.value()}, {"density", "mass density in g cm⁻³", p.density.value()}} {
-		if math.IsNaN(f.v) {
-			return opacity.Composition{}, usagef("--%s is required (%s)", f.name, f.what)
-		}
-		if !(f.v > 0) || math.IsInf(f.v, 0) {
-			return opacity.Composition{}, usagef("--%s %g: want a positive, finite %s", f.name, f.v, f.what)
+		v          *requiredFloat
+	}{{"temperature", "temperature in K", p.temp}, {"density", "mass density in g cm⁻³", p.density}} {
+		if err := f.v.positive(f.name, f.what); err != nil {
+			return opacity.Composition{}, err
 		}
 	}
 	if strings.TrimSpace(*p.fracs) == "" {
