@@ -44,30 +44,3 @@ func fastExp(y float64) float64 {
 	scale := math.Float64frombits(uint64((k>>6)+1023) << 52)
 	return math.FMA(t, q, t) * scale
 }
-
-// fastExpm1 returns e^y − 1 by the same table-driven method as fastExp,
-// arranged so that no cancellation is lost: with s = 2^m·2^(j/64) (exact, and
-// s − 1 exact by Sterbenz's lemma for |y| < ln 2), e^y − 1 = s·q + (s − 1)
-// in one fused multiply-add, where q = e^r − 1 from its series. Where m = j
-// = 0 (|y| ≤ ln2/128) it is the series itself, so small arguments keep full
-// relative precision; elsewhere the relative error is below 3e-14 (the
-// rounding of 2^(j/64) relative to |e^y − 1| ≥ 0.0054). It returns −1 for
-// y < −708 and defers to math.Expm1 above 709 and for NaN.
-func fastExpm1(y float64) float64 {
-	if !(y > -708) {
-		if y != y {
-			return y
-		}
-		return -1
-	}
-	if y > 709 {
-		return math.Expm1(y)
-	}
-	const shifter = 0x1.8p52
-	kf := (y*(64/math.Ln2) + shifter) - shifter
-	k := int64(kf)
-	r := (y - kf*ln2Hi) - kf*ln2Lo
-	q := r * (1 + r*(1.0/2+r*(1.0/6+r*(1.0/24+r*(1.0/120)))))
-	s := expTable[k&63] * math.Float64frombits(uint64((k>>6)+1023)<<52)
-	return math.FMA(s, q, s-1)
-}

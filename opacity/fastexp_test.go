@@ -71,37 +71,6 @@ func BenchmarkExp(b *testing.B) {
 	}
 }
 
-// TestFastExpm1 compares fastExpm1 with math.Expm1 (the reference).
-func TestFastExpm1(t *testing.T) {
-	r := rand.New(rand.NewPCG(1, 3))
-	worst := 0.0
-	for i := range 2_000_000 {
-		var y float64
-		switch i % 4 {
-		case 0:
-			y = -700 + 1405*r.Float64()
-		case 1:
-			y = -(math.Pow(10, -15+17*r.Float64())) // −1e-15 … −100: escape probabilities
-		case 2:
-			y = (r.Float64() - 0.5) * 1e-2
-		default:
-			y = -2 + 4*r.Float64()
-		}
-		got, want := fastExpm1(y), math.Expm1(y)
-		rel := math.Abs(got-want) / math.Abs(want)
-		worst = max(worst, rel)
-		if rel > 3e-14 {
-			t.Fatalf("fastExpm1(%v) = %v, math.Expm1 %v (relative error %g)", y, got, want, rel)
-		}
-	}
-	t.Logf("worst relative error %g", worst)
-	for _, c := range []struct{ y, want float64 }{{0, 0}, {math.Inf(-1), -1}, {-800, -1}, {1e-300, 1e-300}} {
-		if got := fastExpm1(c.y); got != c.want {
-			t.Errorf("fastExpm1(%v) = %v, want %v", c.y, got, c.want)
-		}
-	}
-}
-
 // TestEscape compares escape with −math.Expm1(−τ) (the reference) over the
 // optical depths a line list spans.
 func TestEscape(t *testing.T) {
