@@ -62,7 +62,8 @@ func BenchmarkMillionLines(b *testing.B) {
 	for _, c := range []struct {
 		name    string
 		preview bool
-	}{{"preview", true}, {"full", false}} {
+		diluted bool
+	}{{"preview", true, false}, {"full", false, false}, {"full-diluted", false, true}} {
 		b.Run(c.name, func(b *testing.B) {
 			set := Settings{Preview: c.preview, Workers: runtime.GOMAXPROCS(0)}
 			comp, _ := opacity.ParseComposition(comps[0])
@@ -74,7 +75,9 @@ func BenchmarkMillionLines(b *testing.B) {
 			for i := 0; b.Loop(); i++ {
 				comp, _ := opacity.ParseComposition(comps[i%2])
 				e := ej
+				e.Diluted = c.diluted
 				e.BetaPh = 0.2 + 0.01*float64(i%3)
+				e.BetaMax = 0.35 + 0.01*float64(i%2)
 				r, err := m.Spectrum(ctx, comp, e, set)
 				if err != nil {
 					b.Fatal(err)
