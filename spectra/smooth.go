@@ -44,6 +44,9 @@ func SmoothFlux(dst, wave, flux []float64, resolvingPower float64, skip []bool) 
 // (unc, into dstU) when both are non-nil. It needs dst distinct from flux.
 func smooth(dst, dstU, wave, flux, unc []float64, resolvingPower float64, skip []bool) {
 	n := len(wave)
+	if n == 0 {
+		return
+	}
 	sigLn := fwhmToSigma / resolvingPower // σ in ln λ
 	inv2s2 := 1 / (2 * sigLn * sigLn)
 	cut := math.Exp(gaussCut * sigLn)

@@ -194,3 +194,17 @@ func ones(n int) []float64 {
 	}
 	return x
 }
+
+func TestEmptyInputsDoNotPanic(t *testing.T) {
+	if got := SmoothFlux(nil, nil, nil, 1000, nil); len(got) != 0 {
+		t.Error("SmoothFlux on nothing")
+	}
+	if got := ResampleFlux(nil, []float64{1, 2}, nil, nil); len(got) != 2 || got[0] != 0 {
+		t.Errorf("ResampleFlux from nothing: %v", got)
+	}
+	s, _ := New(nil, nil, nil, Metadata{})
+	r, err := s.Resample([]float64{1, 2})
+	if err != nil || r.CountMasked(MaskEdge) != 2 {
+		t.Errorf("Resample of an empty spectrum: %v, %v", r, err)
+	}
+}
