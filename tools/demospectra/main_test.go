@@ -43,8 +43,8 @@ func TestScenarioRecorded(t *testing.T) {
 	}
 }
 
-// TestDemoFiles checks the committed spectra: they regenerate byte for byte
-// from the scenario and seed, spectra.ReadText reads them with the recorded
+// TestDemoFiles checks the committed spectra: they regenerate from the
+// scenario and seed, spectra.ReadText reads them with the recorded
 // epoch, the removed telluric ranges hold no pixel, and the flagged ones are
 // masked.
 func TestDemoFiles(t *testing.T) {
@@ -67,8 +67,13 @@ func TestDemoFiles(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !bytes.Equal(Format(sc, i, s), raw) {
-			t.Errorf("%s does not regenerate byte for byte; run go run ./tools/demospectra", e.File)
+		// Regeneration: the same pixels and masks, and fluxes within 1 % of
+		// the noise (the noise is seeded, so any difference is the model's;
+		// a tolerance rather than byte equality allows for floating-point
+		// contraction on other CPUs).
+		again, err := spectra.ReadText(bytes.NewReader(Format(sc, i, s)), spectra.ReadOptions{Name: e.File})
+		if err != nil {
+			t.Fatal(err)
 		}
 		if !bytes.Contains(raw, []byte("INVENTED")) {
 			t.Errorf("%s lacks the INVENTED label", e.File)
@@ -79,6 +84,16 @@ func TestDemoFiles(t *testing.T) {
 		}
 		if got.Meta.Epoch != e.Days || got.Meta.FluxUnit != spectra.FluxPerAngstrom || !got.HasUncertainty() {
 			t.Errorf("%s read back with %+v", e.File, got.Meta)
+		}
+		if again.Len() != got.Len() {
+			t.Fatalf("%s: %d pixels, regenerated %d; run go run ./tools/demospectra", e.File, got.Len(), again.Len())
+		}
+		for k := range got.Wavelength {
+			if got.Wavelength[k] != again.Wavelength[k] || got.Masked(k) != again.Masked(k) ||
+				math.Abs(got.Flux[k]-again.Flux[k]) > 0.01*got.Uncertainty[k] {
+				t.Fatalf("%s: pixel %d (%g Å) does not regenerate (flux %g vs %g); run go run ./tools/demospectra",
+					e.File, k, got.Wavelength[k], got.Flux[k], again.Flux[k])
+			}
 		}
 		flagged := 0
 		for k, l := range got.Wavelength {
