@@ -110,7 +110,8 @@ const (
 	// 0.3 ≤ x ≤ 10 µm⁻¹ (1000 Å – 3.33 µm).
 	CCM89 ExtinctionLaw = iota
 	// F99 is Fitzpatrick (1999, PASP 111, 63) with the optical/IR spline
-	// anchors of the FM_UNRED form (R_V-dependent), valid 910 Å – 6 µm.
+	// anchors as updated by Fitzpatrick after the paper (R_V-dependent; the
+	// values Debian's python3-extinction uses), valid 910 Å – 6 µm.
 	F99
 )
 

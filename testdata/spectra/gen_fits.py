@@ -100,7 +100,7 @@ ref["files"]["image_int16_scaled.fits"] = {
     "ref_wave_unit": "m",
     "raw_dtype": str(raw.dtype), "n_hdu": 3}
 
-# 4. IRAF-style log10-linear dispersion (DC-FLAG = 1): λ = 10^(CRVAL1 + CDELT1 (p − CRPIX1)).
+# 4. The older log10-linear dispersion convention (DC-FLAG = 1): λ = 10^(CRVAL1 + CDELT1 (p − CRPIX1)).
 n = 30
 flux = np.linspace(5, 6, n).astype(">f4")
 h = fits.PrimaryHDU(flux)
