@@ -1,11 +1,15 @@
 package synth
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
+	"path"
 
+	"broadline/linelists"
 	"broadline/opacity"
 	"broadline/spectra"
 )
@@ -153,4 +157,68 @@ func (in Instrument) Pixels() []float64 {
 		w[i] = in.FromUm * 1e4 * math.Exp(float64(i)*step)
 	}
 	return w
+}
+
+// LoadStore reads the scenario's line lists and levels files from fsys; their
+// names are relative to dir, the directory of the scenario file (slash
+// separated, as io/fs wants: an embedded file system or os.DirFS both work).
+func (s *Scenario) LoadStore(fsys fs.FS, dir string) (*linelists.Store, error) {
+	b := linelists.NewBuilder()
+	read := func(name string, f func(r io.Reader) error) error {
+		p := path.Join(dir, name)
+		r, err := fsys.Open(p)
+		if err != nil {
+			return fmt.Errorf("synth: scenario: %w", err)
+		}
+		defer r.Close()
+		return f(r)
+	}
+	for _, name := range s.LineFiles {
+		if err := read(name, func(r io.Reader) error {
+			_, err := b.Read(r, linelists.ReadOptions{Name: name})
+			return err
+		}); err != nil {
+			return nil, err
+		}
+	}
+	for _, name := range s.LevelFiles {
+		if err := read(name, func(r io.Reader) error {
+			_, err := b.ReadLevels(r, linelists.LevelsOptions{Name: name})
+			return err
+		}); err != nil {
+			return nil, err
+		}
+	}
+	st, _ := b.Build()
+	return st, nil
+}
+
+// NewModel returns a model of st over the scenario's wavelength range.
+func (s *Scenario) NewModel(st *linelists.Store) (*Model, error) {
+	return NewModel(st, s.ModelFromUm*1e4, s.ModelToUm*1e4, 0)
+}
+
+// Truth returns epoch i's noiseless spectrum as the scenario's instrument
+// records it: the pixel wavelengths (Å, before any range is removed), the
+// model flux at the scenario's distance (erg s⁻¹ cm⁻² Å⁻¹) smoothed to the
+// instrument's resolving power, and the bare blackbody continuum. A betaPh > 0
+// replaces the recorded photosphere velocity (for recovery tests and sweeps).
+func (s *Scenario) Truth(ctx context.Context, m *Model, i int, betaPh float64, workers int) (wave, flux, cont []float64, err error) {
+	ej := s.Ejecta(i)
+	if betaPh > 0 {
+		ej.BetaPh = betaPh
+	}
+	res, err := m.Spectrum(ctx, s.Composition(), ej, Settings{Workers: workers})
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	d := s.DistanceMpc * spectra.Megaparsec
+	res.Flux = res.AtDistance(d)
+	wave = s.Instrument.Pixels()
+	flux, _, err = res.Observe(s.Instrument.ResolvingPower, wave)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	cont = spectra.BlackbodyFluxes(nil, wave, ej.Temperature, ej.PhotosphereRadius(), d)
+	return wave, flux, cont, nil
 }

@@ -2,6 +2,7 @@ package synth
 
 import (
 	"bytes"
+	"context"
 	"os"
 	"strings"
 	"testing"
@@ -58,4 +59,46 @@ func FuzzReadScenario(f *testing.F) {
 			t.Fatalf("accepted a scenario with %d pixels", n)
 		}
 	})
+}
+
+// TestScenarioTruth loads the demo's line lists through io/fs and checks
+// the noiseless truth of the last epoch: positive flux that stays within a
+// factor 2 of the blackbody continuum at the recorded distance (a
+// scattering envelope only redistributes the photosphere's light).
+func TestScenarioTruth(t *testing.T) {
+	raw, err := os.ReadFile("../../app/demo/spectra/scenario.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc, err := ReadScenario(bytes.NewReader(raw))
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := sc.LoadStore(os.DirFS("../../app/demo"), "spectra")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(st.SpeciesTable) < 8 {
+		t.Fatalf("demo store has %d species", len(st.SpeciesTable))
+	}
+	m, err := sc.NewModel(st)
+	if err != nil {
+		t.Fatal(err)
+	}
+	last := len(sc.Epochs) - 1
+	wave, flux, cont, err := sc.Truth(context.Background(), m, last, 0, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(wave) != len(flux) || len(wave) != len(cont) {
+		t.Fatalf("lengths %d, %d, %d", len(wave), len(flux), len(cont))
+	}
+	for i := range wave {
+		if r := flux[i] / cont[i]; !(r > 0) || r > 2 {
+			t.Fatalf("F/F_bb = %g at %g Å", r, wave[i])
+		}
+	}
+	if _, err := sc.LoadStore(os.DirFS("."), "nowhere"); err == nil {
+		t.Error("missing line files: no error")
+	}
 }

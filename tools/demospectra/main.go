@@ -122,62 +122,19 @@ func run(dir string) error {
 // LoadStore reads the scenario's line lists and levels files, named
 // relative to dir.
 func LoadStore(dir string, sc *synth.Scenario) (*linelists.Store, error) {
-	b := linelists.NewBuilder()
-	for _, f := range sc.LineFiles {
-		p := filepath.Join(dir, f)
-		r, err := os.Open(p)
-		if err != nil {
-			return nil, err
-		}
-		_, err = b.Read(r, linelists.ReadOptions{Name: p})
-		r.Close()
-		if err != nil {
-			return nil, err
-		}
-	}
-	for _, f := range sc.LevelFiles {
-		p := filepath.Join(dir, f)
-		r, err := os.Open(p)
-		if err != nil {
-			return nil, err
-		}
-		_, err = b.ReadLevels(r, linelists.LevelsOptions{Name: p})
-		r.Close()
-		if err != nil {
-			return nil, err
-		}
-	}
-	st, _ := b.Build()
-	return st, nil
+	// io/fs paths cannot climb with "..", so open the parent and name the
+	// scenario's directory inside it.
+	return sc.LoadStore(os.DirFS(filepath.Join(dir, "..")), filepath.Base(filepath.Clean(dir)))
 }
 
-// Noiseless returns epoch i's model flux (erg s⁻¹ cm⁻² Å⁻¹ at the
-// scenario's distance) and blackbody continuum on the instrument's pixels,
-// smoothed to its resolving power, with the photosphere velocity replaced by
-// betaPh when it is > 0 (for recovery tests).
+// Noiseless is sc.Truth with all cores.
 func Noiseless(ctx context.Context, sc *synth.Scenario, m *synth.Model, i int, betaPh float64) (wave, flux, cont []float64, err error) {
-	ej := sc.Ejecta(i)
-	if betaPh > 0 {
-		ej.BetaPh = betaPh
-	}
-	res, err := m.Spectrum(ctx, sc.Composition(), ej, synth.Settings{Workers: runtime.GOMAXPROCS(0)})
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	res.Flux = res.AtDistance(sc.DistanceMpc * spectra.Megaparsec)
-	wave = sc.Instrument.Pixels()
-	flux, _, err = res.Observe(sc.Instrument.ResolvingPower, wave)
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	rph := ej.PhotosphereRadius()
-	cont = spectra.BlackbodyFluxes(nil, wave, ej.Temperature, rph, sc.DistanceMpc*spectra.Megaparsec)
-	return wave, flux, cont, nil
+	return sc.Truth(ctx, m, i, betaPh, runtime.GOMAXPROCS(0))
 }
 
 // NewModel returns the model over the scenario's range.
 func NewModel(sc *synth.Scenario, st *linelists.Store) (*synth.Model, error) {
-	return synth.NewModel(st, sc.ModelFromUm*1e4, sc.ModelToUm*1e4, 0)
+	return sc.NewModel(st)
 }
 
 // Observe returns epoch i as the invented instrument records it: the pixels
