@@ -158,7 +158,10 @@ func Extinction(law ExtinctionLaw, lambda, rv float64) (float64, error) {
 	return 0, fmt.Errorf("spectra: unknown extinction law %d", law)
 }
 
-// ccm89ab returns CCM89's a(x) and b(x), x in µm⁻¹.
+// ccm89ab returns CCM89's a(x) and b(x), x in µm⁻¹. The infrared and
+// optical coefficients are those listed in REFERENCES.md; the ultraviolet
+// and far-ultraviolet ones were typed from memory and are confirmed against
+// python3-extinction down to 1050 Å by TestExtinctionAgainstPackage.
 func ccm89ab(x float64) (a, b float64, err error) {
 	switch {
 	case x >= 0.3 && x < 1.1:
@@ -188,7 +191,10 @@ func ccm89ab(x float64) (a, b float64, err error) {
 	return 0, 0, fmt.Errorf("spectra: CCM89 is defined for 1000 Å ≤ λ ≤ 33333 Å, got %.6g Å", 1e4/x)
 }
 
-// f99 returns A_λ/E(B−V) of Fitzpatrick (1999), x in µm⁻¹.
+// f99 returns A_λ/E(B−V) of Fitzpatrick (1999), x in µm⁻¹. The FM90
+// parameters and the spline anchors were typed from memory and are
+// confirmed against python3-extinction from 1050 Å to 3 µm, for
+// R_V = 2.5, 3.1 and 5, by TestExtinctionAgainstPackage.
 func f99(x, rv float64) (float64, error) {
 	if x < 1e4/60000 || x > 1e4/910 {
 		return 0, fmt.Errorf("spectra: F99 is defined for 910 Å ≤ λ ≤ 6 µm, got %.6g Å", 1e4/x)

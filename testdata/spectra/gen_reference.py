@@ -33,7 +33,8 @@ out["vac_to_air"] = {"vacuum_A": vac.tolist(), "air_A": air.tolist()}
 out["air_to_vac"] = {"air_A": air_in.tolist(), "vacuum_A": vac_out.tolist()}
 
 # Extinction A_lambda in magnitudes for A_V = R_V * E(B-V), E(B-V) = 1.
-wave = np.array([3000.0, 3500.0, 4000.0, 4400.0, 5000.0, 5500.0, 6000.0, 7000.0, 8000.0,
+wave = np.array([1050.0, 1150.0, 1250.0, 1500.0, 1800.0, 2175.0, 2500.0, 2700.0,
+                 3000.0, 3500.0, 4000.0, 4400.0, 5000.0, 5500.0, 6000.0, 7000.0, 8000.0,
                  9000.0, 10000.0, 12500.0, 16500.0, 22000.0, 30000.0])
 ext = []
 for rv in (2.5, 3.1, 5.0):
