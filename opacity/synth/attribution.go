@@ -103,7 +103,8 @@ type LineContribution struct {
 	// TauPhotosphere is the line's Sobolev optical depth at the photosphere.
 	TauPhotosphere float64
 	// Acting is the wavelength at which the line absorbs the photosphere
-	// most directly, λ₀(1 − v_ph/c) (first order), in Å.
+	// most directly, λ₀ shifted by v_ph along the line of sight (λ₀(1 − v_ph/c)
+	// to first order, λ₀√((1 − β)/(1 + β)) with the relativistic policy), Å.
 	Acting float64
 }
 
@@ -120,9 +121,9 @@ type Attribution struct {
 
 // Attribute returns each element's share of the absorbed equivalent width in
 // the observed window [from, to] Å (with only its lines, and lost without
-// them) and the nLines lines with the largest
-// Sobolev optical depth at the photosphere whose acting wavelength
-// λ₀(1 − v_ph/c) falls in the window. The shares use the absorption-only
+// them) and the nLines lines with the largest Sobolev optical depth at the
+// photosphere whose acting wavelength (λ₀ shifted by v_ph, see
+// LineContribution.Acting) falls in the window. The shares use the absorption-only
 // approximation, which measures what the lines take out of the photosphere's
 // light without the scattered emission refilling it.
 func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejecta, from, to float64, nLines int, set Settings) (*Attribution, error) {
@@ -187,18 +188,21 @@ func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejec
 		}
 	}
 	sort.SliceStable(a.Elements, func(i, j int) bool { return a.Elements[i].Share > a.Elements[j].Share })
-	a.Lines = m.strongestLines(s, ej, from, to, nLines)
+	a.Lines = m.strongestLines(s, ej, from, to, nLines, set.Options.Doppler)
 	return a, nil
 }
 
 // strongestLines returns the nLines lines with the largest τ at the
 // photosphere whose acting wavelength is in [from, to].
-func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int) []LineContribution {
+func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int, d Doppler) []LineContribution {
 	if nLines <= 0 {
 		return nil
 	}
 	st := m.store
 	shift := 1 - ej.BetaPh
+	if d == Relativistic {
+		shift = math.Sqrt((1 - ej.BetaPh) / (1 + ej.BetaPh))
+	}
 	lo := sort.SearchFloat64s(st.Wavelength, from/shift)
 	hi := sort.SearchFloat64s(st.Wavelength, math.Nextafter(to/shift, math.Inf(1)))
 	T := ej.TemperatureAt(ej.BetaPh)

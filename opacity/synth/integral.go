@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"runtime"
 	"sync"
 	"sync/atomic"
 )
@@ -391,11 +392,12 @@ func integrate(ctx context.Context, tau *Tau, from, to int, opt Options, workers
 			}
 		}
 	}
+	workers = min(workers, runtime.GOMAXPROCS(0), nchunks)
 	if workers <= 1 {
 		work()
 	} else {
 		var wg sync.WaitGroup
-		for range min(workers, nchunks) {
+		for range workers {
 			wg.Go(work)
 		}
 		wg.Wait()
