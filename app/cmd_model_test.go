@@ -154,3 +154,17 @@ func TestModelBadInput(t *testing.T) {
 		}
 	}
 }
+
+// FuzzParseVelocity checks that no string makes parseVelocity panic or
+// return a velocity outside [0, c).
+func FuzzParseVelocity(f *testing.F) {
+	for _, s := range []string{"0.2c", "60000km/s", "60000 km/s", "1e5km/s", "c", "km/s", "-0c", "0x1p-2c", "Infc", "1e-400c"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		b, err := parseVelocity(s)
+		if err == nil && !(b >= 0 && b < 1) {
+			t.Fatalf("%q accepted as %g c", s, b)
+		}
+	})
+}
