@@ -256,7 +256,7 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 		fmt.Fprint(stderr, "; ABSORPTION-ONLY PREVIEW, not the full model")
 	}
 	fmt.Fprintln(stderr)
-	for _, w := range rep.Warnings {
+	for _, w := range append(rep.Warnings, res.Warnings...) {
 		fmt.Fprintln(stderr, "model: warning:", w)
 	}
 	return nil

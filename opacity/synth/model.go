@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 	"sync"
 
 	"broadline/linelists"
@@ -236,6 +237,10 @@ type Result struct {
 	// photosphere outwards; Velocity the nodes (v/c).
 	Plasma   []*opacity.Plasma
 	Velocity []float64
+	// Warnings are plain sentences about the inputs' limits: elements of
+	// the composition without lines in the store, ion stages with lines
+	// whose partition function is only a lower bound.
+	Warnings []string
 }
 
 // AtDistance returns the flux (erg s⁻¹ cm⁻² Å⁻¹) received at distance d (cm):
@@ -430,7 +435,43 @@ func (m *Model) integrateState(ctx context.Context, s *state, t *Tau, ej Ejecta,
 	for k := range vel {
 		vel[k] = s.env.Node(k)
 	}
-	return &Result{Wavelength: w, Normalized: p, Flux: flux, Preview: set.Preview, Ejecta: ej, Plasma: s.plasma, Velocity: vel}, nil
+	return &Result{Wavelength: w, Normalized: p, Flux: flux, Preview: set.Preview, Ejecta: ej,
+		Plasma: s.plasma, Velocity: vel, Warnings: m.warnings(s)}, nil
+}
+
+// warnings lists the elements of the plasma that have no lines in the store
+// and the species with lines whose partition function at the photosphere is
+// incomplete (a lower bound).
+func (m *Model) warnings(s *state) []string {
+	if len(s.plasma) == 0 {
+		return nil
+	}
+	p := s.plasma[0]
+	has := map[int]bool{}
+	for _, sp := range m.store.SpeciesTable {
+		has[int(sp.Z)] = true
+	}
+	var out []string
+	var lower []string
+	for _, e := range p.Elements {
+		el, _ := linelists.ElementByZ(e.Z)
+		if !has[e.Z] {
+			out = append(out, fmt.Sprintf("%s has no lines in the line lists: it only supplies electrons", el.Symbol))
+			continue
+		}
+		for j := 0; j < e.Stages; j++ {
+			sp := e.Species(j)
+			_, ok := m.store.SpeciesIndex(sp)
+			if ok && (!e.PartitionComplete[j] || m.store.LevelSourceOf(sp) != linelists.FileLevels) {
+				lower = append(lower, sp.String())
+			}
+		}
+	}
+	if len(lower) > 0 {
+		out = append(out, fmt.Sprintf("partition functions are lower bounds (only the levels the line lists name, or the ground level) for %s",
+			strings.Join(lower, ", ")))
+	}
+	return out
 }
 
 // Spectrum returns the spectrum of ejecta ej with composition comp: the LTE

@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"broadline/linelists"
@@ -166,6 +167,19 @@ func TestModelSpectrum(t *testing.T) {
 		if !scalar.EqualWithinRel(r.Flux[i], want, 1e-12) {
 			t.Fatalf("flux at %g Å %g, want π B_λ F/F_c = %g", l, r.Flux[i], want)
 		}
+	}
+	// The test store has no levels file, so every partition function with
+	// lines is a lower bound; Nd II has lines but the composition has no Te.
+	if len(r.Warnings) != 1 || !strings.Contains(r.Warnings[0], "lower bounds") || !strings.Contains(r.Warnings[0], "Ca II") {
+		t.Errorf("warnings %q", r.Warnings)
+	}
+	withTe, _ := opacity.ParseComposition("Ca=0.2,Sr=0.3,Nd=0.5,Te=1")
+	rte, err := m.Spectrum(ctx, withTe, ej, Settings{Preview: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rte.Warnings) != 2 || !strings.Contains(rte.Warnings[0], "Te has no lines") {
+		t.Errorf("warnings with Te: %q", rte.Warnings)
 	}
 	g := m.Grid()
 	ia := g.Nearest(8544.44 * (1 - 1.1*ej.BetaPh))
