@@ -121,7 +121,7 @@ type run struct {
 // under 0.5 % (TestGrouping).
 const (
 	runMaxDF  = 0.25
-	runMaxDW  = 0.01
+	runMaxDW  = 0.005
 	runMaxLen = 64
 )
 

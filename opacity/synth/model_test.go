@@ -57,6 +57,7 @@ func testEjecta() Ejecta {
 // 0.01 M☉ in a uniform sphere to 0.1 c at 1 d has ρ = 2.7e-13 g cm⁻³, ∝ t⁻³;
 // and that 4π ∫ r² ρ dr recovers the mass for other indices (gonum quad).
 func TestDensityScale(t *testing.T) {
+	t.Parallel()
 	e := Ejecta{Time: spectra.Day, Mass: 0.01 * spectra.SolarMass, BetaPh: 0.05, BetaMax: 0.1, Temperature: 5000}
 	if err := e.Validate(); err != nil {
 		t.Fatal(err)
@@ -104,6 +105,7 @@ func TestDensityScale(t *testing.T) {
 // sum over the lines of each bin, to the accuracy of taking the
 // stimulated-emission factor at the bin centre.
 func TestBinnedDepths(t *testing.T) {
+	t.Parallel()
 	st := testStore(t, 3000)
 	m, err := NewModel(st, 4000, 24000, 0)
 	if err != nil {
@@ -150,6 +152,7 @@ func TestBinnedDepths(t *testing.T) {
 // the knock-out of Ca restores the continuum at the triplet's absorption, and
 // the result does not depend on the number of workers.
 func TestModelSpectrum(t *testing.T) {
+	t.Parallel()
 	st := testStore(t, 2000)
 	m, err := NewModel(st, 5000, 14000, 0)
 	if err != nil {
@@ -237,6 +240,7 @@ func TestModelSpectrum(t *testing.T) {
 // triplet's absorption: Ca dominates, and the strongest lines listed are the
 // triplet's, with acting wavelength λ₀(1 − v_ph/c).
 func TestAttribute(t *testing.T) {
+	t.Parallel()
 	st := testStore(t, 2000)
 	m, err := NewModel(st, 5000, 14000, 0)
 	if err != nil {

@@ -11,6 +11,7 @@ import (
 // TestReadScenario reads the committed demo scenario and checks that bad
 // scenarios are refused with an error.
 func TestReadScenario(t *testing.T) {
+	t.Parallel()
 	raw, err := os.ReadFile("../../app/demo/spectra/scenario.json")
 	if err != nil {
 		t.Fatal(err)
@@ -66,6 +67,7 @@ func FuzzReadScenario(f *testing.F) {
 // factor 2 of the blackbody continuum at the recorded distance (a
 // scattering envelope only redistributes the photosphere's light).
 func TestScenarioTruth(t *testing.T) {
+	t.Parallel()
 	raw, err := os.ReadFile("../../app/demo/spectra/scenario.json")
 	if err != nil {
 		t.Fatal(err)
