@@ -45,11 +45,14 @@ func (l *listFlag) Set(s string) error {
 }
 
 // velocityFlag is a velocity given as a fraction of c ("0.2c") or in km/s
-// ("60000km/s"); it holds v/c, or NaN when not set.
-type velocityFlag struct{ beta float64 }
+// ("60000km/s"); beta is v/c, set says whether it was given.
+type velocityFlag struct {
+	beta float64
+	set  bool
+}
 
 func (v *velocityFlag) String() string {
-	if v == nil || math.IsNaN(v.beta) {
+	if v == nil || !v.set {
 		return ""
 	}
 	return strconv.FormatFloat(v.beta, 'g', -1, 64) + "c"
@@ -60,8 +63,39 @@ func (v *velocityFlag) Set(s string) error {
 	if err != nil {
 		return err
 	}
-	v.beta = b
+	v.beta, v.set = b, true
 	return nil
+}
+
+// numberFlag is a number flag that remembers whether it was given, so that
+// a required value has no misleading default in the help.
+type numberFlag struct {
+	v   float64
+	set bool
+}
+
+func (n *numberFlag) String() string {
+	if n == nil || !n.set {
+		return ""
+	}
+	return strconv.FormatFloat(n.v, 'g', -1, 64)
+}
+
+func (n *numberFlag) Set(s string) error {
+	x, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	if err != nil {
+		return fmt.Errorf("%q is not a number", s)
+	}
+	n.v, n.set = x, true
+	return nil
+}
+
+// value returns the number, or NaN when it was not given.
+func (n *numberFlag) value() float64 {
+	if !n.set {
+		return math.NaN()
+	}
+	return n.v
 }
 
 // parseVelocity reads "0.2c" or "60000km/s" (spaces allowed before the unit)
@@ -94,16 +128,15 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 	var lines, levels, without listFlag
 	fs.Var(&lines, "lines", "line-list `FILE` (repeatable, or comma-separated)")
 	fs.Var(&levels, "levels", "levels `FILE` for partition functions (optional, repeatable)")
-	fracs := fs.String("mass-fractions", "", "element mass fractions, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\" (normalised)")
-	days := fs.Float64("days", math.NaN(), "time since explosion in days")
-	vph := &velocityFlag{math.NaN()}
-	vout := &velocityFlag{math.NaN()}
-	vin := &velocityFlag{0}
-	fs.Var(vph, "photosphere-velocity", "photosphere velocity, e.g. 0.2c or 60000km/s")
-	fs.Var(vout, "outer-velocity", "outer edge of the ejecta, e.g. 0.35c")
-	fs.Var(vin, "inner-velocity", "inner edge of the density law (default 0; needed for --density-index ≥ 3)")
-	temp := fs.Float64("temperature", math.NaN(), "photosphere blackbody temperature in K")
-	mass := fs.Float64("ejecta-mass", math.NaN(), "total ejecta mass in solar masses")
+	fracs := fs.String("mass-fractions", "", "element mass fractions, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\" (normalised; required)")
+	var daysF, tempF, massF numberFlag
+	fs.Var(&daysF, "days", "time since explosion in `days` (required)")
+	vph, vout, vin := &velocityFlag{}, &velocityFlag{}, &velocityFlag{}
+	fs.Var(vph, "photosphere-velocity", "photosphere `velocity`, e.g. 0.2c or 60000km/s (required)")
+	fs.Var(vout, "outer-velocity", "outer edge of the ejecta, a `velocity` such as 0.35c (required)")
+	fs.Var(vin, "inner-velocity", "inner edge of the density law, a `velocity` (default 0; needed for --density-index ≥ 3)")
+	fs.Var(&tempF, "temperature", "photosphere blackbody temperature in `K` (required)")
+	fs.Var(&massF, "ejecta-mass", "total ejecta mass in solar `masses` (required)")
 	index := fs.Float64("density-index", 0, "n in ρ ∝ v^−n (0: uniform)")
 	from := fs.Float64("from-um", 0.4, "start of the wavelength range, µm (vacuum)")
 	to := fs.Float64("to-um", 2.5, "end of the wavelength range, µm (vacuum)")
@@ -119,6 +152,13 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 	}
 	if len(pos) > 0 {
 		return usagef("unexpected argument %q (line lists go after --lines)", pos[0])
+	}
+	days, temp, mass := daysF.value(), tempF.value(), massF.value()
+	if !vph.set {
+		vph.beta = math.NaN()
+	}
+	if !vout.set {
+		vout.beta = math.NaN()
 	}
 
 	// Check every value before reading anything.
@@ -145,11 +185,11 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 		name, what string
 		v          float64
 	}{
-		{"days", "time in days", *days},
+		{"days", "time in days", days},
 		{"photosphere-velocity", "velocity, e.g. 0.2c", vph.beta},
 		{"outer-velocity", "velocity, e.g. 0.35c", vout.beta},
-		{"temperature", "temperature in K", *temp},
-		{"ejecta-mass", "mass in solar masses", *mass},
+		{"temperature", "temperature in K", temp},
+		{"ejecta-mass", "mass in solar masses", mass},
 	} {
 		if err := need(chk.name, chk.v, chk.what); err != nil {
 			return err
@@ -185,9 +225,9 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 		out = append(out, e.Z)
 	}
 	ej := synth.Ejecta{
-		Time: *days * spectra.Day, Mass: *mass * spectra.SolarMass,
+		Time: days * spectra.Day, Mass: mass * spectra.SolarMass,
 		BetaIn: vin.beta, BetaPh: vph.beta, BetaMax: vout.beta,
-		DensityIndex: *index, Temperature: *temp, Diluted: *diluted,
+		DensityIndex: *index, Temperature: temp, Diluted: *diluted,
 	}
 	if err := ej.Validate(); err != nil {
 		return usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
