@@ -184,6 +184,14 @@ func TestModelSpectrum(t *testing.T) {
 	if len(rte.Warnings) != 2 || !strings.Contains(rte.Warnings[0], "Te has no lines") {
 		t.Errorf("warnings with Te: %q", rte.Warnings)
 	}
+	sp, err := r.Spectrum(true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if sp.Len() != len(r.Wavelength) || sp.Flux[10] != r.Normalized[10] || sp.Meta.FluxUnit != spectra.FluxNormalized ||
+		!scalar.EqualWithinRel(sp.Meta.Epoch, 1.5, 1e-12) {
+		t.Errorf("as spectrum: %d samples, unit %v, epoch %g", sp.Len(), sp.Meta.FluxUnit, sp.Meta.Epoch)
+	}
 	g := m.Grid()
 	ia := g.Nearest(8544.44 * (1 - 1.1*ej.BetaPh))
 	if r.Normalized[ia] > 0.9 {

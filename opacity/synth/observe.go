@@ -31,3 +31,22 @@ func (r *Result) Observe(R float64, grid []float64) (flux, normalized []float64,
 	}
 	return spectra.ResampleFlux(nil, grid, w, flux), spectra.ResampleFlux(nil, grid, w, normalized), nil
 }
+
+// Spectrum returns the result as a spectra.Spectrum on the model's grid (no
+// smoothing): the flux in erg s⁻¹ cm⁻² Å⁻¹ (as in r.Flux), or F/F_c when
+// normalized, with no uncertainty. The metadata say it is synthetic and, for
+// a preview, that it is the absorption-only approximation.
+func (r *Result) Spectrum(normalized bool) (*spectra.Spectrum, error) {
+	src := "synthetic: photospheric P Cygni model"
+	if r.Preview {
+		src = "synthetic: absorption-only preview (approximation)"
+	}
+	unit := spectra.FluxPerAngstrom
+	y := r.Flux
+	if normalized {
+		unit = spectra.FluxNormalized
+		y = r.Normalized
+	}
+	meta := spectra.Metadata{Source: src, FluxUnit: unit, Epoch: r.Ejecta.Time / spectra.Day}
+	return spectra.New(append([]float64(nil), r.Wavelength...), append([]float64(nil), y...), nil, meta)
+}
