@@ -59,7 +59,9 @@ type Options struct {
 
 // Default resolutions of the formal integral.
 const (
-	DefaultCoreRays     = 16
+	// DefaultCoreRays is the default number of rays across the photosphere's disc.
+	DefaultCoreRays = 16
+	// DefaultEnvelopeRays is the default number of rays outside the photosphere.
 	DefaultEnvelopeRays = 32
 	// DefaultPreviewRays is the default number of rays of the absorption-only
 	// preview, which trades accuracy for speed.
