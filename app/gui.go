@@ -1,46 +1,345 @@
 package main
 
 import (
+	"context"
+	"errors"
+	"fmt"
+	"image"
+	"os"
+	"path/filepath"
+	"strconv"
+	"sync"
+
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/app"
+	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
+
+	"broadline/spectra"
 )
 
-// runWorkbench opens the desktop workbench and blocks until it is closed.
+// runWorkbench opens the desktop workbench on the built-in demo and blocks
+// until it is closed.
 func runWorkbench() error {
+	d, err := loadDemo()
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
+	b, err := newBench(d)
+	if err != nil {
+		return fmt.Errorf("demo: %w", err)
+	}
 	a := app.NewWithID("org.broadline.workbench")
-	w := newWorkbenchWindow(a)
-	w.Resize(fyne.NewSize(1280, 800))
-	w.ShowAndRun()
+	wb := newWorkbench(a, b, newSession("demo", d))
+	wb.win.Resize(fyne.NewSize(1280, 800))
+	wb.recompute()
+	wb.win.ShowAndRun()
 	return nil
 }
 
-// newWorkbenchWindow builds the main window in app a: the layout frame and
-// the menus. It is separate from runWorkbench so tests can build it with
-// fyne's headless test app.
-func newWorkbenchWindow(a fyne.App) fyne.Window {
-	w := a.NewWindow("broadline")
-	w.SetContent(workbenchFrame())
-	help := fyne.NewMenu("Help",
-		fyne.NewMenuItem("About the model…", func() { showModelHelp(w) }),
-	)
-	w.SetMainMenu(fyne.NewMainMenu(help))
-	return w
+// workbench is the main window: widgets that show a Session and a bench.
+// It only arranges widgets and calls the session and bench; every number it
+// shows is computed outside this file.
+type workbench struct {
+	win   fyne.Window
+	bench *bench
+	sess  *Session
+
+	epoch     *widget.Select
+	velocity  *widget.Slider
+	velLabel  *widget.Label
+	temp      *widget.Slider
+	tempLabel *widget.Label
+	fractions *widget.Entry
+	preview   *widget.Check
+	status    *widget.Label
+	busy      *widget.ProgressBarInfinite
+	cancelBtn *widget.Button
+	figure    *canvas.Image
+	features  *widget.Table
+	featRows  []spectra.Feature
+
+	mu     sync.Mutex
+	cancel context.CancelFunc // of the running computation, if any
+	gen    int                // generation of the latest request
+	// done, if set, is called on the UI goroutine after each computation
+	// finishes (tests wait on it).
+	done func(*overlay, error)
 }
 
-// workbenchFrame lays out the workbench: the spectrum view in the middle, the
-// model controls on the left, the feature table below.
-func workbenchFrame() fyne.CanvasObject {
-	model := widget.NewCard("Ejecta model", "", widget.NewLabel("velocity · temperature · age · composition"))
-	plot := widget.NewCard("Spectrum", "", widget.NewLabel("observed and synthetic spectra appear here"))
-	table := widget.NewCard("Features", "", widget.NewLabel("absorption features and candidate lines"))
+// newWorkbench builds the window in app a for bench b and session s.
+func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
+	wb := &workbench{win: a.NewWindow("broadline"), bench: b, sess: s}
+	sc := b.data.Scenario
+
+	var epochs []string
+	for _, ep := range sc.Epochs {
+		epochs = append(epochs, fmt.Sprintf("%g d", ep.Days))
+	}
+	wb.epoch = widget.NewSelect(epochs, func(string) {
+		i := wb.epoch.SelectedIndex()
+		if i < 0 || i == wb.sess.Epoch {
+			return
+		}
+		wb.sess.Epoch = i
+		wb.sess.resetModel(wb.bench.data)
+		wb.syncControls()
+		wb.updateFeatures()
+		wb.recompute()
+	})
+
+	wb.velLabel = widget.NewLabel("")
+	wb.velocity = widget.NewSlider(0.02, sc.OuterVelocity-0.01)
+	wb.velocity.Step = 0.005
+	wb.velocity.OnChanged = func(v float64) { wb.sess.PhotosphereVelocity = v; wb.showValues() }
+	wb.velocity.OnChangeEnded = func(float64) { wb.recompute() }
+
+	wb.tempLabel = widget.NewLabel("")
+	wb.temp = widget.NewSlider(2000, 12000)
+	wb.temp.Step = 50
+	wb.temp.OnChanged = func(v float64) { wb.sess.Temperature = v; wb.showValues() }
+	wb.temp.OnChangeEnded = func(float64) { wb.recompute() }
+
+	wb.fractions = widget.NewMultiLineEntry()
+	wb.fractions.Wrapping = fyne.TextWrapWord
+	wb.fractions.SetMinRowsVisible(3)
+	apply := widget.NewButton("Apply composition", func() {
+		wb.sess.MassFractions = wb.fractions.Text
+		wb.recompute()
+	})
+	wb.preview = widget.NewCheck("Absorption-only preview (fast, approximate)", func(on bool) {
+		if on != wb.sess.Preview {
+			wb.sess.Preview = on
+			wb.recompute()
+		}
+	})
+	reset := widget.NewButton("Reset to the recorded values", func() {
+		wb.sess.resetModel(wb.bench.data)
+		wb.syncControls()
+		wb.recompute()
+	})
+
+	wb.status = widget.NewLabel("")
+	wb.status.Wrapping = fyne.TextWrapWord
+	wb.busy = widget.NewProgressBarInfinite()
+	wb.busy.Hide()
+	wb.cancelBtn = widget.NewButton("Cancel", func() { wb.stop() })
+	wb.cancelBtn.Hide()
+
+	banner := widget.NewLabel(sc.Object + " — " + firstSentence(sc.Label))
+	banner.Wrapping = fyne.TextWrapWord
+	banner.TextStyle = fyne.TextStyle{Italic: true}
+
+	controls := container.NewVBox(
+		widget.NewLabelWithStyle("Epoch", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.epoch,
+		widget.NewLabelWithStyle("Photosphere velocity", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.velocity, wb.velLabel,
+		widget.NewLabelWithStyle("Photosphere temperature", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.temp, wb.tempLabel,
+		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions, apply,
+		wb.preview, reset,
+		widget.NewSeparator(), wb.busy, wb.cancelBtn, wb.status,
+	)
+	model := widget.NewCard("Ejecta model", "", container.NewVScroll(controls))
+
+	wb.figure = canvas.NewImageFromImage(image.NewRGBA(image.Rect(0, 0, 1, 1)))
+	wb.figure.FillMode = canvas.ImageFillContain
+	wb.figure.SetMinSize(fyne.NewSize(640, 360))
+	plot := widget.NewCard("Spectrum", "", container.NewBorder(banner, nil, nil, nil, wb.figure))
+
+	wb.features = widget.NewTableWithHeaders(
+		func() (int, int) { return len(wb.featRows), 4 },
+		func() fyne.CanvasObject { return widget.NewLabel("0.000000 µm") },
+		func(id widget.TableCellID, o fyne.CanvasObject) {
+			o.(*widget.Label).SetText(featureCell(wb.featRows[id.Row], id.Col))
+		})
+	wb.features.CreateHeader = func() fyne.CanvasObject { return widget.NewLabel("significance") }
+	wb.features.UpdateHeader = func(id widget.TableCellID, o fyne.CanvasObject) {
+		if id.Row < 0 {
+			o.(*widget.Label).SetText([]string{"minimum (µm)", "depth", "width (µm)", "significance (σ)"}[id.Col])
+		} else {
+			o.(*widget.Label).SetText(strconv.Itoa(id.Row + 1))
+		}
+	}
+	for c, w := range []float32{130, 90, 110, 130} {
+		wb.features.SetColumnWidth(c, w)
+	}
+	table := widget.NewCard("Features", "absorption minima of the observed spectrum", wb.features)
+
 	right := container.NewVSplit(plot, table)
-	right.Offset = 0.75
+	right.Offset = 0.72
 	split := container.NewHSplit(model, right)
-	split.Offset = 0.25
-	return split
+	split.Offset = 0.26
+	wb.win.SetContent(split)
+	wb.win.SetMainMenu(fyne.NewMainMenu(
+		fyne.NewMenu("Session",
+			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
+		),
+		fyne.NewMenu("Help",
+			fyne.NewMenuItem("About the model…", func() { showModelHelp(wb.win) }),
+		),
+	))
+	wb.syncControls()
+	wb.updateFeatures()
+	return wb
+}
+
+// syncControls sets every control from the session.
+func (wb *workbench) syncControls() {
+	wb.epoch.SetSelectedIndex(wb.sess.Epoch)
+	wb.velocity.SetValue(wb.sess.PhotosphereVelocity)
+	wb.temp.SetValue(wb.sess.Temperature)
+	wb.fractions.SetText(wb.sess.MassFractions)
+	wb.preview.SetChecked(wb.sess.Preview)
+	wb.showValues()
+}
+
+func (wb *workbench) showValues() {
+	wb.velLabel.SetText(fmt.Sprintf("%.3f c  (%.0f km/s)", wb.sess.PhotosphereVelocity, wb.sess.PhotosphereVelocity*spectra.SpeedOfLightKmS))
+	wb.tempLabel.SetText(fmt.Sprintf("%.0f K", wb.sess.Temperature))
+}
+
+// updateFeatures finds the absorption features of the shown epoch.
+func (wb *workbench) updateFeatures() {
+	obs := wb.bench.data.Observed[wb.sess.Epoch]
+	f, err := spectra.FindFeatures(obs, spectra.FeatureOptions{ResolvingPower: 150})
+	if err != nil {
+		f = nil
+		wb.status.SetText("feature search: " + err.Error())
+	}
+	var keep []spectra.Feature
+	for _, x := range f {
+		if x.Significance >= 5 {
+			keep = append(keep, x)
+		}
+	}
+	wb.featRows = keep
+	wb.features.Refresh()
+}
+
+func featureCell(f spectra.Feature, col int) string {
+	switch col {
+	case 0:
+		return fmt.Sprintf("%.4f", f.Wavelength/1e4)
+	case 1:
+		return fmt.Sprintf("%.3f", f.Depth)
+	case 2:
+		return fmt.Sprintf("%.4f", f.Width/1e4)
+	default:
+		return fmt.Sprintf("%.1f", f.Significance)
+	}
+}
+
+// recompute starts the synthesis for the current session off the UI
+// goroutine, cancelling any computation still running.
+func (wb *workbench) recompute() {
+	wb.mu.Lock()
+	if wb.cancel != nil {
+		wb.cancel()
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	wb.cancel = cancel
+	wb.gen++
+	gen := wb.gen
+	wb.mu.Unlock()
+
+	sess := *wb.sess // the goroutine works on a copy
+	wb.busy.Show()
+	wb.busy.Start()
+	wb.cancelBtn.Show()
+	wb.status.SetText("computing…")
+	go func() {
+		ov, err := wb.bench.compute(ctx, &sess)
+		var img image.Image
+		if err == nil {
+			img, err = wb.draw(&sess, ov)
+		}
+		fyne.Do(func() { wb.finish(gen, &sess, ov, img, err) })
+	}()
+}
+
+// draw renders the figure for a finished computation (off the UI goroutine).
+func (wb *workbench) draw(s *Session, ov *overlay) (image.Image, error) {
+	obs := wb.bench.data.Observed[s.Epoch]
+	title := fmt.Sprintf("%s, %g d after explosion", wb.bench.data.Scenario.Object, wb.bench.data.Scenario.Epochs[s.Epoch].Days)
+	p, err := spectrumFigure(obs, ov, title)
+	if err != nil {
+		return nil, err
+	}
+	return renderFigure(p, 1100, 560), nil
+}
+
+// finish shows a computation's result, unless a newer one has been asked for.
+func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, err error) {
+	wb.mu.Lock()
+	latest := gen == wb.gen
+	if latest {
+		wb.cancel = nil
+	}
+	wb.mu.Unlock()
+	if !latest {
+		return
+	}
+	wb.busy.Stop()
+	wb.busy.Hide()
+	wb.cancelBtn.Hide()
+	switch {
+	case errors.Is(err, context.Canceled):
+		wb.status.SetText("cancelled")
+	case err != nil:
+		wb.status.SetText("error: " + err.Error())
+	default:
+		wb.figure.Image = img
+		wb.figure.Refresh()
+		msg := fmt.Sprintf("v_ph = %.3f c, T = %.0f K: χ²/N = %.2f over %d unmasked samples", s.PhotosphereVelocity, s.Temperature, ov.Chi2/float64(max(ov.N, 1)), ov.N)
+		if ov.Preview {
+			msg += " (absorption-only preview: an approximation)"
+		}
+		for _, w := range ov.Warnings {
+			msg += "\n• " + w
+		}
+		wb.status.SetText(msg)
+	}
+	if wb.done != nil {
+		wb.done(ov, err)
+	}
+}
+
+// stop cancels the running computation.
+func (wb *workbench) stop() {
+	wb.mu.Lock()
+	if wb.cancel != nil {
+		wb.cancel()
+	}
+	wb.mu.Unlock()
+}
+
+// saveDialog asks for a path and saves the session there atomically (a
+// temporary file renamed over the old one, so a failed save loses nothing).
+func (wb *workbench) saveDialog() {
+	path := widget.NewEntry()
+	path.SetText(defaultSessionPath())
+	dialog.ShowForm("Save session", "Save", "Cancel",
+		[]*widget.FormItem{widget.NewFormItem("File", path)},
+		func(ok bool) {
+			if !ok {
+				return
+			}
+			if err := wb.sess.Save(path.Text); err != nil {
+				dialog.ShowError(err, wb.win)
+				return
+			}
+			wb.status.SetText("session saved to " + path.Text)
+		}, wb.win)
+}
+
+// defaultSessionPath is session.json in the working directory.
+func defaultSessionPath() string {
+	dir, err := os.Getwd()
+	if err != nil {
+		return "session.json"
+	}
+	return filepath.Join(dir, "session.json")
 }
 
 // showModelHelp opens the dialog that states the model's approximations.
@@ -50,4 +349,14 @@ func showModelHelp(w fyne.Window) {
 	scroll := container.NewVScroll(text)
 	scroll.SetMinSize(fyne.NewSize(620, 420))
 	dialog.ShowCustom("About the model", "Close", scroll, w)
+}
+
+// firstSentence returns s up to and including its first full stop.
+func firstSentence(s string) string {
+	for i := 0; i+1 < len(s); i++ {
+		if s[i] == '.' && s[i+1] == ' ' {
+			return s[:i+1]
+		}
+	}
+	return s
 }

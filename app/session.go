@@ -1,0 +1,112 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"broadline/opacity"
+)
+
+// sessionVersion is written into every saved session; a file from a newer
+// version is refused rather than half-read.
+const sessionVersion = 1
+
+// Session is everything the workbench shows and the analyst has chosen, as a
+// plain value: the GUI reads it and calls its methods, tests drive it without
+// a display, and it is saved as JSON.
+type Session struct {
+	Version int `json:"version"`
+	// Dataset names the scenario: "demo" for the built-in demo.
+	Dataset string `json:"dataset"`
+	// Epoch is the index of the shown epoch in the dataset.
+	Epoch int `json:"epoch"`
+	// PhotosphereVelocity is v_ph / c.
+	PhotosphereVelocity float64 `json:"photosphere_velocity_c"`
+	// Temperature is the photosphere's temperature in K.
+	Temperature float64 `json:"temperature_k"`
+	// MassFractions is the composition, "Sr=0.05,Nd=0.001,…".
+	MassFractions string `json:"mass_fractions"`
+	// Preview selects the absorption-only approximation.
+	Preview bool `json:"preview"`
+}
+
+// newSession returns a session on epoch 0 of d with the model parameters set
+// to the scenario's recorded values (for the demo: the truth).
+func newSession(name string, d *dataset) *Session {
+	s := &Session{Version: sessionVersion, Dataset: name}
+	s.resetModel(d)
+	return s
+}
+
+// resetModel sets the model parameters to the dataset's values for the
+// current epoch.
+func (s *Session) resetModel(d *dataset) {
+	ep := d.Scenario.Epochs[s.Epoch]
+	s.PhotosphereVelocity = ep.PhotosphereVelocity
+	s.Temperature = ep.Temperature
+	s.MassFractions = d.Scenario.MassFractions
+}
+
+// Validate checks the session against the dataset it refers to.
+func (s *Session) Validate(d *dataset) error {
+	switch {
+	case s.Version < 1 || s.Version > sessionVersion:
+		return fmt.Errorf("session version %d not supported (this program writes %d)", s.Version, sessionVersion)
+	case s.Epoch < 0 || s.Epoch >= len(d.Scenario.Epochs):
+		return fmt.Errorf("epoch %d out of range (the dataset has %d)", s.Epoch, len(d.Scenario.Epochs))
+	case !(s.PhotosphereVelocity > 0) || s.PhotosphereVelocity >= d.Scenario.OuterVelocity:
+		return fmt.Errorf("photosphere velocity %gc must lie between 0 and the outer velocity %gc", s.PhotosphereVelocity, d.Scenario.OuterVelocity)
+	case !(s.Temperature >= 1000 && s.Temperature <= 1e5):
+		return fmt.Errorf("temperature %g K outside 1000–100000 K", s.Temperature)
+	}
+	if _, err := opacity.ParseComposition(s.MassFractions); err != nil {
+		return fmt.Errorf("mass fractions: %w", err)
+	}
+	return nil
+}
+
+// Save writes the session as JSON to path atomically: to a temporary file in
+// the same directory, synced, then renamed over path. A failure leaves any
+// earlier file at path untouched.
+func (s *Session) Save(path string) error {
+	js, err := json.MarshalIndent(s, "", "  ")
+	if err != nil {
+		return fmt.Errorf("save session: %w", err)
+	}
+	js = append(js, '\n')
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*.tmp")
+	if err != nil {
+		return fmt.Errorf("save session: %w", err)
+	}
+	defer os.Remove(tmp.Name()) // no-op after a successful rename
+	if _, err := tmp.Write(js); err != nil {
+		tmp.Close()
+		return fmt.Errorf("save session: %w", err)
+	}
+	if err := tmp.Sync(); err != nil {
+		tmp.Close()
+		return fmt.Errorf("save session: %w", err)
+	}
+	if err := tmp.Close(); err != nil {
+		return fmt.Errorf("save session: %w", err)
+	}
+	if err := os.Rename(tmp.Name(), path); err != nil {
+		return fmt.Errorf("save session: %w", err)
+	}
+	return nil
+}
+
+// readSession decodes a session; unknown fields are an error so a misspelt
+// key is never ignored.
+func readSession(r io.Reader) (*Session, error) {
+	var s Session
+	dec := json.NewDecoder(io.LimitReader(r, 1<<20))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&s); err != nil {
+		return nil, fmt.Errorf("read session: %w", err)
+	}
+	return &s, nil
+}
