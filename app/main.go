@@ -7,6 +7,8 @@ package main
 import (
 	"fmt"
 	"os"
+
+	_ "broadline/app/internal/locale" // before the GUI toolkit reads the locale
 )
 
 func main() {
