@@ -10,9 +10,20 @@ import (
 )
 
 // This file generates the invented line lists of the built-in demo. They
-// are random numbers with roughly the statistics of theoretical line lists
-// of heavy elements, NOT atomic data; only the few lines in realLines are
+// are random numbers, NOT atomic data; only the few lines in realLines are
 // real transitions, and each is marked as such where it is written.
+//
+// The invented atoms are shaped after the qualitative statistics of
+// published theoretical line lists of r-process elements (from memory, not
+// their numbers): ions with open d shells (Sr, Y, Zr) have a few hundred
+// levels and a few hundred to a few thousand lines in the optical and
+// near-infrared, and their levels of the parity opposite to the ground's
+// start some 2–3 eV up, so that their strong lines from low levels fall in
+// the blue and ultraviolet; ions with open f shells (the lanthanides) have
+// thousands of levels of both parities within the first one or two eV and
+// 10⁵–10⁶ lines, most of them weak. The demo keeps that contrast (a factor
+// of about 50–100 in line count) at a size that fits the program: a real
+// list of a lanthanide ion is 10–100 times longer still.
 
 // DemoElement is one element of the demo line lists and what to invent for
 // it.
@@ -24,37 +35,70 @@ type DemoElement struct {
 	Stages []DemoStage
 }
 
-// DemoStage sets the size of the invented level and line sets of one ion.
+// DemoStage sets the size and shape of the invented level and line sets of
+// one ion.
 type DemoStage struct {
 	Charge uint8
-	Levels int     // invented levels, ground level included
-	Lines  int     // invented lines
-	Gap    float64 // eV: invented excited levels start above this energy
+	Levels int // invented levels, ground level included
+	Lines  int // invented lines (fewer when the levels allow no more)
+	// Gap is the energy (eV) above which the excited levels of the ground's
+	// parity start; CrossGap is where the levels of the opposite parity
+	// start. Lines join levels of opposite parity (electric dipole), so
+	// CrossGap sets where the strong lines from the lowest levels fall.
+	Gap, CrossGap float64
+	// Spread is the width (eV) of the band each parity's levels fill above
+	// its start, at most up to 85 % of the ionisation energy: a couple of eV
+	// for the few low configurations of a light ion, ~10 eV for the many
+	// overlapping configurations of a lanthanide ion.
+	Spread float64
 	JMax   float64 // largest J of invented levels
+	// LowerScale (eV), when > 0, draws the lower levels of the lines with
+	// weight exp(−E/LowerScale), to keep a big list to the lines that matter
+	// at a few thousand K; 0 draws them uniformly, as a complete list of a
+	// small ion has lines from every level.
+	LowerScale float64
+	// LogGFMean and LogGFSigma are the mean and spread of the normal
+	// distribution log gf is drawn from (clipped to −7…+0.9).
+	LogGFMean, LogGFSigma float64
 }
 
 // DemoPlan returns the elements of the demo line lists. The file names are
 // stable: other parts of the program read them.
+//
+// The sizes, gaps and gf distributions are invented; their pattern follows
+// the published theoretical lists qualitatively (from memory):
+//   - Sr: Sr II has the real lines only (its invented levels begin above
+//     5.5 eV, where the real ion's 6s and 5d levels lie, so their lines are
+//     weak at kilonova temperatures); Sr I and Sr III are small.
+//   - Y, Zr (open 4d shell): ~10² levels per ion, opposite parity from
+//     ~1.3–2 eV (neutral) and ~3 eV (singly ionised), 10²–10³ lines,
+//     log gf centred near −1.5 (fewer, on average stronger lines).
+//   - Ce, Nd, Sm (open 4f shell): ~10³ levels per ion, both parities from
+//     a few tenths of an eV to ~1.5 eV, 10⁴–10⁵ lines per ion, log gf
+//     centred near −2.6 with σ 1.3 (many weak lines).
+//   - Eu (half-filled 4f shell): fewer levels and lines than its
+//     neighbours, and its singly ionised lines from the ground need ~3 eV.
 func DemoPlan() []DemoElement {
-	light := func(sym string, l1, l2, l3 int, gaps [3]float64) DemoElement {
-		return DemoElement{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: []DemoStage{
-			{0, l1 / 12, l1, gaps[0], 4}, {1, l2 / 12, l2, gaps[1], 4}, {2, l3 / 12, l3, gaps[2], 4},
-		}}
+	const lgLight, sdLight = -1.8, 1.0 // log gf of the d-shell ions
+	const lgLan, sdLan = -2.9, 1.3     // log gf of the f-shell ions
+	el := func(sym string, st ...DemoStage) DemoElement {
+		return DemoElement{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: st}
 	}
-	lan := func(sym string, gaps [3]float64) DemoElement {
-		return DemoElement{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: []DemoStage{
-			{0, 1000, 14000, gaps[0], 8}, {1, 1500, 40000, gaps[1], 8}, {2, 600, 8000, gaps[2], 8},
-		}}
+	d := func(charge uint8, levels, lines int, gap, cross float64) DemoStage {
+		return DemoStage{charge, levels, lines, gap, cross, 2.2, 4, 0, lgLight, sdLight}
+	}
+	f := func(charge uint8, levels, lines int, gap, cross float64) DemoStage {
+		return DemoStage{charge, levels, lines, gap, cross, 10, 8, 2, lgLan, sdLan}
 	}
 	return []DemoElement{
 		{Symbol: "Ca", File: "demo_ca"}, // the real Ca II lines only
-		light("Sr", 2500, 1500, 600, [3]float64{1.8, 5.0, 21}),
-		light("Y", 4000, 5000, 1500, [3]float64{0, 0, 0}),
-		light("Zr", 5000, 6000, 2500, [3]float64{0, 0, 0}),
-		lan("Ce", [3]float64{0, 0, 0}),
-		lan("Nd", [3]float64{0, 0, 0}),
-		lan("Sm", [3]float64{0, 0, 0}),
-		lan("Eu", [3]float64{1.6, 0, 0.3}),
+		el("Sr", d(0, 50, 150, 2.2, 1.8), d(1, 40, 60, 5.5, 6.6), d(2, 30, 40, 21, 21.5)),
+		el("Y", d(0, 80, 150, 1.3, 1.3), d(1, 90, 250, 0, 2.9), d(2, 30, 40, 0.9, 5.4)),
+		el("Zr", d(0, 110, 200, 0, 1.8), d(1, 110, 300, 0, 3.0), d(2, 40, 60, 0, 7.5)),
+		el("Ce", f(0, 900, 20000, 0, 1.0), f(1, 1200, 45000, 0, 1.2), f(2, 500, 12000, 0, 1.1)),
+		el("Nd", f(0, 1200, 25000, 0, 1.0), f(1, 1800, 65000, 0, 1.5), f(2, 700, 20000, 0, 1.7)),
+		el("Sm", f(0, 1200, 25000, 0, 1.2), f(1, 1700, 60000, 0, 1.3), f(2, 600, 15000, 0, 2.0)),
+		el("Eu", f(0, 400, 8000, 1.6, 1.6), f(1, 700, 22000, 1.2, 2.7), f(2, 400, 8000, 0.3, 2.5)),
 	}
 }
 
@@ -96,6 +140,9 @@ const (
 	demoMinWavelength = 3500
 	demoMaxWavelength = 25000
 	hcEVAngstrom      = 1e8 * invCmToEV // λ[Å] = hc/ΔE[eV]
+	// demoGFWavelength is where the invented log gf has the stage's mean;
+	// it falls as log10(5000 Å/λ) on either side.
+	demoGFWavelength = 5000
 )
 
 // Demo generates the invented lines and levels of one element of the demo
@@ -161,79 +208,114 @@ func RealNote(s *Store, i int) string {
 }
 
 type demoLevel struct {
-	e float64
-	g float32
+	e   float64
+	g   float32
+	odd bool // parity opposite to the ground level's
 }
 
 // demoLevels invents a level set: the ground level with the weight from
-// the element table, 15 % of the excited levels spread evenly over the
-// first eV above Gap (low-lying fine structure), the rest with a density
-// rising as (E − Gap)^1.5 up to 85 % of the ionisation energy (at most
-// Gap + 10 eV). J is whole or half-whole as the number of electrons is
-// even or odd. Energies are rounded to 1e-4 eV.
+// the element table, then levels of the ground's parity from Gap and of the
+// opposite parity from CrossGap, half and half. Of each parity, 15 % of the
+// levels are spread evenly over the first eV above its start (low-lying
+// terms), the rest with a density rising as (E − start)^1.5 up to Spread
+// above the start (at most 85 % of the ionisation energy, at least 1 eV). J is whole
+// or half-whole as the number of electrons is even or odd. Energies are
+// rounded to 1e-4 eV.
 func demoLevels(rng *rand.Rand, sp Species, st DemoStage, ie float64) []demoLevel {
-	out := []demoLevel{{0, float32(mustGround(sp))}}
-	top := math.Min(0.85*ie, st.Gap+10)
+	out := []demoLevel{{0, float32(mustGround(sp)), false}}
 	half := (int(sp.Z)-int(sp.Charge))%2 == 1
 	for len(out) < st.Levels {
+		odd := rng.IntN(2) == 1
+		start := st.Gap
+		if odd {
+			start = st.CrossGap
+		}
+		top := math.Max(math.Min(0.85*ie, start+st.Spread), start+1)
 		var e float64
 		if rng.Float64() < 0.15 {
-			e = st.Gap + 0.02 + 0.98*rng.Float64()
+			e = start + 0.02 + 0.98*rng.Float64()
 		} else {
-			e = st.Gap + 0.02 + (top-st.Gap)*math.Pow(rng.Float64(), 1/2.5)
+			e = start + 0.02 + (top-start)*math.Pow(rng.Float64(), 1/2.5)
 		}
 		e = math.Round(e*1e4) / 1e4
 		j := float64(rng.IntN(int(st.JMax) + 1))
 		if half {
 			j += 0.5
 		}
-		out = append(out, demoLevel{e, float32(2*j + 1)})
+		out = append(out, demoLevel{e, float32(2*j + 1), odd})
 	}
 	slices.SortFunc(out, func(a, b demoLevel) int { return cmp.Or(cmp.Compare(a.e, b.e), cmp.Compare(a.g, b.g)) })
-	return slices.CompactFunc(out, func(a, b demoLevel) bool { return a == b })
+	// Two levels with the same energy and weight would be one level in the
+	// levels file: keep the first.
+	return slices.CompactFunc(out, func(a, b demoLevel) bool { return a.e == b.e && a.g == b.g })
 }
 
-// demoLines invents lines between the levels: the lower level drawn with
-// weight exp(−E/2 eV) (lists hold lines from every level, but the demo
-// wants those that matter at a few thousand K), the upper level uniformly
-// among those that put the line in 3500–25000 Å, and log gf from a normal
-// distribution (mean −2.3, σ 1.2, clipped to −7…+0.9), roughly the spread
-// of theoretical lists of heavy elements.
+// demoLines invents lines between the levels by the electric-dipole rules:
+// opposite parity, |ΔJ| ≤ 1 and not J = 0 → 0. The lower level is drawn
+// uniformly or with weight exp(−E/LowerScale), the upper level uniformly
+// among the levels of the other parity that put the line in 3500–25000 Å,
+// and log gf from a normal distribution (LogGFMean, LogGFSigma) plus
+// log10(5000 Å/λ), clipped to −7…+0.9.
 func demoLines(rng *rand.Rand, sp Species, st DemoStage, levels []demoLevel) []Line {
 	cum := make([]float64, len(levels))
 	sum := 0.0
 	for i, l := range levels {
-		sum += math.Exp(-l.e / 2)
+		if st.LowerScale > 0 {
+			sum += math.Exp(-l.e / st.LowerScale)
+		} else {
+			sum++
+		}
 		cum[i] = sum
 	}
-	energies := make([]float64, len(levels))
+	// Indices and energies of the levels of each parity, by energy.
+	var idx [2][]int
+	var energies [2][]float64
 	for i, l := range levels {
-		energies[i] = l.e
+		p := 0
+		if l.odd {
+			p = 1
+		}
+		idx[p] = append(idx[p], i)
+		energies[p] = append(energies[p], l.e)
 	}
-	type pair struct{ lo, up int }
+	// A second line from the same lower level to another level at the same
+	// energy would duplicate the first: one line per lower level and upper
+	// energy.
+	type pair struct {
+		lo  int
+		eUp float64
+	}
 	used := map[pair]bool{}
 	out := make([]Line, 0, st.Lines)
 	for tries := 0; len(out) < st.Lines && tries < 50*st.Lines; tries++ {
 		lo, _ := slices.BinarySearch(cum, rng.Float64()*sum)
 		lo = min(lo, len(levels)-1)
+		other := 1
+		if levels[lo].odd {
+			other = 0
+		}
 		eMin := levels[lo].e + hcEVAngstrom/demoMaxWavelength
 		eMax := levels[lo].e + hcEVAngstrom/demoMinWavelength
-		a, _ := slices.BinarySearch(energies, eMin)
-		z, _ := slices.BinarySearch(energies, eMax)
+		a, _ := slices.BinarySearch(energies[other], eMin)
+		z, _ := slices.BinarySearch(energies[other], eMax)
 		if z <= a {
 			continue
 		}
-		up := a + rng.IntN(z-a)
-		if used[pair{lo, up}] {
+		up := idx[other][a+rng.IntN(z-a)]
+		gl, gu := levels[lo].g, levels[up].g
+		if math.Abs(float64(gu-gl)) > 2 || gl == 1 && gu == 1 || used[pair{lo, levels[up].e}] {
 			continue
 		}
-		used[pair{lo, up}] = true
-		lgf := math.Round(math.Max(-7, math.Min(0.9, -2.3+1.2*rng.NormFloat64()))*1e3) / 1e3
+		used[pair{lo, levels[up].e}] = true
 		w := hcEVAngstrom / (levels[up].e - levels[lo].e)
+		// For a given dipole matrix element f ∝ ΔE (f = 2mₑΔE|D|²/(3ħ²e²g),
+		// common practice): lines far in the infrared are weaker.
+		lgf := st.LogGFMean + st.LogGFSigma*rng.NormFloat64() + math.Log10(demoGFWavelength/w)
+		lgf = math.Round(math.Max(-7, math.Min(0.9, lgf))*1e3) / 1e3
 		out = append(out, Line{
 			Wavelength: math.Round(w*1e4) / 1e4, LogGF: lgf, Species: sp,
-			LowerEnergy: levels[lo].e, LowerG: levels[lo].g,
-			HasUpper: true, UpperEnergy: levels[up].e, UpperG: levels[up].g,
+			LowerEnergy: levels[lo].e, LowerG: gl,
+			HasUpper: true, UpperEnergy: levels[up].e, UpperG: gu,
 		})
 	}
 	return out
@@ -244,8 +326,9 @@ func DemoComments(el DemoElement, seed uint64) []string {
 	return []string{
 		"INVENTED FOR DEMONSTRATION - NOT ATOMIC DATA.",
 		"This file was made up by broadline's seeded demo generator (linelists.Demo,",
-		fmt.Sprintf("seed %d, element %s): random level energies, weights and gf values with", seed, el.Symbol),
-		"roughly the statistics of theoretical line lists of heavy elements. It is not",
+		fmt.Sprintf("seed %d, element %s): random level energies, weights and gf values shaped", seed, el.Symbol),
+		"after the qualitative statistics of theoretical line lists (few lines for the",
+		"open-d-shell elements, very many weak ones for the lanthanides). It is not",
 		"a measurement or calculation of any real atom. Do not use it for science.",
 		"The only real transitions are the few lines preceded by a comment that says",
 		"\"real line\"; their log gf values are typed from memory and need checking.",

@@ -99,7 +99,8 @@ func dataRows(b []byte) string {
 
 // TestDemoStatistics checks the generator does what its comment says: the
 // same seed gives the same lines, wavelengths stay in 3500–25000 Å, each
-// wavelength is hc/ΔE of its levels, and log gf has mean ≈ −2.3 and σ ≈ 1.2.
+// wavelength is hc/ΔE of its levels with |ΔJ| ≤ 1, and log gf minus the
+// documented log10(5000 Å/λ) trend has the plan's mean and σ.
 func TestDemoStatistics(t *testing.T) {
 	el := DemoPlan()[5] // Nd
 	if el.Symbol != "Nd" {
@@ -110,7 +111,10 @@ func TestDemoStatistics(t *testing.T) {
 		t.Fatal(err)
 	}
 	b, _ := Demo(el, 7)
-	c, _ := Demo(el, 8)
+	c, err := Demo(el, 8)
+	if err != nil {
+		t.Fatal(err)
+	}
 	if a.Len() != b.Len() || a.Wavelength[100] != b.Wavelength[100] || a.LogGF[999] != b.LogGF[999] {
 		t.Error("same seed, different lists")
 	}
@@ -119,29 +123,32 @@ func TestDemoStatistics(t *testing.T) {
 	}
 	lgf := make([]float64, a.Len())
 	for i := range lgf {
-		lgf[i] = float64(a.LogGF[i])
+		lgf[i] = float64(a.LogGF[i]) - math.Log10(demoGFWavelength/a.Wavelength[i])
 		if w := a.Wavelength[i]; w < 3500 || w > 25000 {
 			t.Fatalf("line %d at %v Å", i, w)
 		}
 	}
 	mean, sd := stat.MeanStdDev(lgf, nil)
 	// The clipping at −7 and +0.9 shifts the moments a little.
-	if !scalar.EqualWithinAbs(mean, -2.3, 0.05) || !scalar.EqualWithinAbs(sd, 1.2, 0.05) {
-		t.Errorf("log gf mean %v sd %v, want ≈ −2.3 and ≈ 1.2", mean, sd)
+	wantMean, wantSD := el.Stages[0].LogGFMean, el.Stages[0].LogGFSigma
+	if !scalar.EqualWithinAbs(mean, wantMean, 0.05) || !scalar.EqualWithinAbs(sd, wantSD, 0.05) {
+		t.Errorf("log gf mean %v sd %v, want ≈ %v and ≈ %v", mean, sd, wantMean, wantSD)
 	}
 	// Each line's lower level is below an upper level at E_low + hc/λ:
 	// check a sample against the level table.
 	for i := 0; i < a.Len(); i += 997 {
 		eUp := a.Levels.Energy[a.Lower[i]] + hcEVAngstrom/a.Wavelength[i]
+		// Electric-dipole rule: some level there has |g_up − g_low| ≤ 2.
 		found := false
+		gl := a.Levels.G[a.Lower[i]]
 		for l, e := range a.Levels.Energy {
-			if a.Levels.Species[l] == a.Species[i] && math.Abs(e-eUp) < 1e-4 {
+			if a.Levels.Species[l] == a.Species[i] && math.Abs(e-eUp) < 1e-4 && math.Abs(float64(a.Levels.G[l]-gl)) <= 2 {
 				found = true
 				break
 			}
 		}
 		if !found {
-			t.Errorf("line %d: no upper level at %.4f eV", i, eUp)
+			t.Errorf("line %d: no upper level at %.4f eV with |ΔJ| ≤ 1", i, eUp)
 		}
 	}
 	if u, complete := a.PartitionFunction(MustSpecies("Nd II"), 5000); !complete || u < 8 {
@@ -168,5 +175,58 @@ func TestDemoRealLines(t *testing.T) {
 	Write(&buf, s, WriteOptions{Note: func(i int) string { return RealNote(s, i) }})
 	if n := strings.Count(buf.String(), "# real line"); n != 5 {
 		t.Errorf("%d real-line marks in the Ca file, want 5", n)
+	}
+}
+
+// TestDemoComplexity checks the contrast the plan is built for (its sources
+// are the qualitative statistics of published theoretical lists, from
+// memory): every open-f-shell element (Ce, Nd, Sm, Eu) has at least 30 times
+// the lines of every open-d-shell element (Sr, Y, Zr), and the strong lines
+// from the lowest levels of Zr (lower level below 0.5 eV, log gf > −1) lie in
+// the blue, while Nd has such lines well into the near-infrared.
+func TestDemoComplexity(t *testing.T) {
+	if testing.Short() {
+		t.Skip("generates every demo element")
+	}
+	count := map[string]int{}
+	var zr, nd *Store
+	for _, el := range DemoPlan() {
+		s, err := Demo(el, 1)
+		if err != nil {
+			t.Fatal(err)
+		}
+		count[el.Symbol] = s.Len()
+		switch el.Symbol {
+		case "Zr":
+			zr = s
+		case "Nd":
+			nd = s
+		}
+	}
+	for _, f := range []string{"Ce", "Nd", "Sm", "Eu"} {
+		for _, d := range []string{"Sr", "Y", "Zr"} {
+			if count[f] < 30*count[d] {
+				t.Errorf("%s has %d lines, %s %d: want a factor ≥ 30", f, count[f], d, count[d])
+			}
+		}
+	}
+	// Longest wavelength of a strong line from a level below 0.5 eV.
+	reddest := func(s *Store) float64 {
+		w := 0.0
+		for i := range s.Len() {
+			if s.Levels.Energy[s.Lower[i]] < 0.5 && s.LogGF[i] > -1 {
+				w = max(w, s.Wavelength[i])
+			}
+		}
+		return w
+	}
+	// Zr: opposite parity from 1.8 eV (Zr I) and 3.0 eV (Zr II), so such
+	// lines need ΔE ≥ 1.3 eV, λ ≤ 9500 Å; Nd I's opposite parity starts at
+	// 1.0 eV and reaches below 0.5 eV of any low level, beyond 2 µm.
+	if w := reddest(zr); w == 0 || w > hcEVAngstrom/1.3 {
+		t.Errorf("Zr: strong low-level lines reach %.0f Å, want some, all below %.0f Å", w, hcEVAngstrom/1.3)
+	}
+	if w := reddest(nd); w < 20000 {
+		t.Errorf("Nd: strong low-level lines reach only %.0f Å, want beyond 2 µm", w)
 	}
 }

@@ -48,15 +48,19 @@ func demoScenario() *synth.Scenario {
 	return &synth.Scenario{
 		Label: "INVENTED DEMONSTRATION DATA: a fictional event, an invented distance, invented epochs, " +
 			"invented line lists and an invented spectrograph. Not an observation; do not use for science. " +
-			"Te carries the mass of the elements that have no demo line list (it has no lines here); the " +
-			"small fractions of Y, Zr and the lanthanides are chosen so that the invented, very line-rich " +
-			"demo atoms leave a few broad features rather than a black spectrum.",
-		Object:          "DEMO-1 (invented)",
-		DistanceMpc:     62,
-		LineFiles:       lines,
-		LevelFiles:      levels,
-		MassFractions:   "Ca=0.002,Sr=0.01,Y=3e-6,Zr=5e-7,Ce=2e-7,Nd=2e-7,Sm=5e-8,Eu=5e-8,Te=0.988",
-		EjectaMassSolar: 0.04,
+			"The composition is that of an invented lanthanide-poor (blue) component: Sr 3 %, Y and Zr below it, " +
+			"lanthanides 2e-4 in all, a little Ca. Se, Br, Kr, Rb, Te and Xe (79 % of the mass) have no demo " +
+			"line list; their low ions have (nearly) closed p shells and few lines from levels populated at a few " +
+			"thousand K, so leaving them out is a fair demo approximation. Mo, Ru and Pd (16 %) also have no demo " +
+			"list, though their real ions have lines like Zr's: the demo's opacity is incomplete there, as real " +
+			"atomic data are.",
+		Object:      "DEMO-1 (invented)",
+		DistanceMpc: 62,
+		LineFiles:   lines,
+		LevelFiles:  levels,
+		MassFractions: "Ca=0.002,Sr=0.03,Y=0.003,Zr=0.01,Ce=5e-5,Nd=1e-4,Sm=3.5e-5,Eu=1.5e-5," +
+			"Se=0.25,Br=0.04,Kr=0.25,Rb=0.05,Mo=0.05,Ru=0.06,Pd=0.05,Te=0.13,Xe=0.0748",
+		EjectaMassSolar: 0.025,
 		InnerVelocity:   0.05,
 		OuterVelocity:   0.35,
 		DensityIndex:    3,
