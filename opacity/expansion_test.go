@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -289,5 +290,30 @@ func TestPlanckMeanAndGrey(t *testing.T) {
 	}
 	if _, err := x.Grey(30000, 40000); !errors.Is(err, ErrGrid) {
 		t.Errorf("Grey outside the grid: %v", err)
+	}
+}
+
+// TestAddEscapes holds the written-out escape loop of the fused pass to
+// −math.Expm1(−τ) (the reference), line by line, over the optical depths a
+// line list spans, including 0, the clamp at 708, +Inf and the thin limit.
+func TestAddEscapes(t *testing.T) {
+	r := rand.New(rand.NewPCG(4, 5))
+	n := 60000
+	tau := make([]float64, n)
+	wl := make([]float64, n)
+	sp := make([]uint16, n)
+	for i := range tau {
+		tau[i] = math.Pow(10, -30+36*r.Float64())
+		wl[i] = 3000 + 20000*r.Float64()
+		sp[i] = uint16(i)
+	}
+	copy(tau, []float64{0, 1e-300, 707.9, 708, 800, math.Inf(1), 1.0 / 128, math.Ln2 / 128})
+	acc := make([]float64, n)
+	addEscapes(acc, tau, wl, sp)
+	for i := range tau {
+		want := -math.Expm1(-tau[i]) * wl[i]
+		if !scalar.EqualWithinAbsOrRel(acc[i], want, 0, 3e-14) {
+			t.Fatalf("τ = %v: λ(1 − e^−τ) = %v, want %v", tau[i], acc[i], want)
+		}
 	}
 }

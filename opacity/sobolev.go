@@ -128,28 +128,8 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 	lev := levelTerms(nil, levelDensity, t)
 	hck := spectra.HCOverK / T
 	return parallel(ctx, n, workers, func(lo, hi int) {
-		wl, gf, lower := st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi]
-		out := dst[lo:hi]
-		gf, lower, out = gf[:len(wl)], lower[:len(wl)], out[:len(wl)]
-		xPrev, e, left := 0.0, 0.0, 0
-		for i, lam := range wl {
-			// Stimulated emission, carried along (see stimRefresh).
-			x := hck / lam
-			d := xPrev - x
-			if left > 0 && d >= 0 && d <= 1e-3 {
-				e *= 1 + d*(1+d*(1.0/2+d*(1.0/6+d*(1.0/24))))
-				left--
-			} else {
-				e = fastExp(-x)
-				left = stimRefresh
-			}
-			xPrev = x
-			stim := 1 - e
-			if x < 1e-3 {
-				stim = -math.Expm1(-x)
-			}
-			out[i] = lam * gf[i] * lev[lower[i]] * stim
-		}
+		var c stimCarry
+		fusedDepths(dst[lo:hi], st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi], lev, hck, &c)
 	})
 }
 
