@@ -18,7 +18,7 @@ func init() {
 	c := &command{
 		name: "opacity",
 		args: "--lines FILE… --mass-fractions LIST --temperature K --density G_CM3 --days D " +
-			"--from-um A --to-um B --bin-um W [--levels FILE…] [--overrides FILE]",
+			"--from-um A --to-um B --bin-um W [--levels FILE…] [--overrides FILE] [--census TAU]",
 		summary: "binned expansion opacity with a column per element (CSV wavelength_um,kappa_cm2_g,<element>…)",
 	}
 	c.run = func(args []string, stdout, stderr io.Writer) error { return runOpacity(c, args, stdout, stderr) }
@@ -35,6 +35,7 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	fromF := floatFlag(fs, "from-um", "start `UM` of the first bin, µm, vacuum (required)")
 	toF := floatFlag(fs, "to-um", "end `UM` of the range, µm, vacuum (required); the last bin may reach past it")
 	binF := floatFlag(fs, "bin-um", "bin width `UM` in µm (required); a line at λ belongs to the bin [edge_k, edge_k+1)")
+	census := fs.Float64("census", 0, "also report on stderr, per species, how many lines have a Sobolev optical depth above `TAU` (> 0)")
 	pos, err := fs.parse(args)
 	if err != nil {
 		return err
@@ -61,6 +62,9 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	days, from, to, bin := daysF.value(), fromF.value(), toF.value(), binF.value()
+	if *census < 0 || math.IsNaN(*census) || math.IsInf(*census, 0) {
+		return usagef("--census %g: want a finite optical depth > 0", *census)
+	}
 	if !(to > from) {
 		return usagef("--from-um %g --to-um %g: empty range (want from < to)", from, to)
 	}
@@ -114,8 +118,28 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 		"n_e = %.4g cm⁻³; grey κ = %.4g and Planck-mean κ = %.4g cm² g⁻¹ over %g–%g µm at %g K\n",
 		x.Lines, grid.Bins(), bin, from, rep.Skipped.Wavelength, x.Unmodelled, p.ElectronDensity,
 		grey, x.PlanckMean(p.Temperature), lo*1e-4, hi*1e-4, p.Temperature)
+	if *census > 0 {
+		tau := make([]float64, st.Len())
+		lev := opacity.PlasmaLevelDensities(nil, st, p)
+		if err := opacity.Sobolev(context.Background(), tau, st, lev, p.Temperature, days*spectra.Day, workers); err != nil {
+			return err
+		}
+		writeCensus(stderr, opacity.CountAbove(st, tau, *census))
+	}
 	for _, w := range rep.Warnings {
 		fmt.Fprintln(stderr, "opacity: warning:", w)
 	}
 	return nil
+}
+
+// writeCensus prints one line: per species, the lines above the threshold
+// out of all its lines in the range.
+func writeCensus(w io.Writer, c opacity.Census) {
+	var b bytes.Buffer
+	fmt.Fprintf(&b, "opacity: lines with Sobolev τ > %g: %d in all", c.Threshold, c.AboveAll)
+	for i, sp := range c.Species {
+		fmt.Fprintf(&b, "; %s %d of %d", sp, c.Above[i], c.Total[i])
+	}
+	b.WriteByte('\n')
+	w.Write(b.Bytes())
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"fmt"
 	"os"
 	"strconv"
 	"strings"
@@ -89,6 +90,29 @@ func TestOpacityCommand(t *testing.T) {
 	}
 	if !strings.Contains(errs, "1 of elements or stages not modelled") || strings.Count(errs, "\n") != 1 {
 		t.Errorf("summary %q should count the one Fe line as not modelled", errs)
+	}
+
+	// --census counts, per species, the lines above a Sobolev τ threshold:
+	// the package's own depths decide what the command must print.
+	tau := make([]float64, st.Len())
+	if err := opacity.Sobolev(context.Background(), tau, st, opacity.PlasmaLevelDensities(nil, st, p), 5000, spectra.Day, 1); err != nil {
+		t.Fatal(err)
+	}
+	for _, thr := range []float64{1e-3, 1, 1e3} {
+		s, _, errs := runOpacityCmd(append(append([]string(nil), args...), "--census", strconv.FormatFloat(thr, 'g', -1, 64))...)
+		if s != 0 {
+			t.Fatalf("census: status %d, %q", s, errs)
+		}
+		want := opacity.CountAbove(st, tau, thr)
+		for i, sp := range want.Species {
+			frag := fmt.Sprintf("%s %d of %d", sp, want.Above[i], want.Total[i])
+			if !strings.Contains(errs, frag) {
+				t.Errorf("census τ > %g: stderr %q lacks %q", thr, errs, frag)
+			}
+		}
+	}
+	if s, _, _ := runOpacityCmd(append(append([]string(nil), args...), "--census", "-1")...); s != 2 {
+		t.Errorf("--census -1: status %d, want 2", s)
 	}
 
 	// A line exactly on an edge belongs to the bin that starts there.
