@@ -3,8 +3,6 @@ package linelists
 import (
 	"bufio"
 	"bytes"
-	"compress/gzip"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -43,15 +41,11 @@ func (b *Builder) ReadLevels(r io.Reader, opts LevelsOptions) (LevelsReport, err
 	perr := func(line, col int, err error) error {
 		return &ParseError{File: opts.Name, Line: line, Column: col, Err: err}
 	}
-	br := bufio.NewReaderSize(r, maxLineLength)
-	if magic, _ := br.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return rep, perr(0, 0, fmt.Errorf("%w: gzip header: %v", ErrSyntax, err))
-		}
-		defer zr.Close()
-		br = bufio.NewReaderSize(zr, maxLineLength)
+	br, _, closeText, err := openText(r)
+	if err != nil {
+		return rep, perr(0, 0, err)
 	}
+	defer closeText()
 	type lv struct {
 		sp Species
 		e  float64
@@ -68,20 +62,14 @@ func (b *Builder) ReadLevels(r io.Reader, opts LevelsOptions) (LevelsReport, err
 	lineNo := 0
 	started := false
 	for {
-		raw, err := br.ReadSlice('\n')
-		if errors.Is(err, bufio.ErrBufferFull) {
-			return rep, perr(lineNo+1, 0, fmt.Errorf("%w: longer than %d bytes", ErrTooLong, maxLineLength))
+		raw, last, err := nextLine(br, lineNo == 0)
+		if err != nil {
+			return rep, perr(lineNo+1, 0, err)
 		}
-		if err != nil && err != io.EOF {
-			return rep, perr(lineNo+1, 0, fmt.Errorf("%w: reading: %v", ErrSyntax, err))
-		}
-		if len(raw) == 0 && err == io.EOF {
+		if raw == nil {
 			break
 		}
 		lineNo++
-		if lineNo == 1 {
-			raw = bytes.TrimPrefix(raw, utf8BOM) // a byte-order mark some editors write
-		}
 		line := bytes.TrimSpace(raw)
 		switch {
 		case len(line) == 0:
@@ -172,7 +160,7 @@ func (b *Builder) ReadLevels(r io.Reader, opts LevelsOptions) (LevelsReport, err
 				rep.Species = append(rep.Species, l.sp)
 			}
 		}
-		if err == io.EOF {
+		if last {
 			break
 		}
 	}

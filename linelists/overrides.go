@@ -1,9 +1,7 @@
 package linelists
 
 import (
-	"bufio"
 	"bytes"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -34,27 +32,25 @@ func ReadOverrides(r io.Reader, name string) (*Overrides, error) {
 	perr := func(line, col int, err error) error {
 		return &ParseError{File: name, Line: line, Column: col, Err: err}
 	}
-	br := bufio.NewReaderSize(r, maxLineLength)
+	br, _, closeText, err := openText(r)
+	if err != nil {
+		return nil, perr(0, 0, err)
+	}
+	defer closeText()
 	colSp, colI, colG := -1, -1, -1
 	nf := 0
 	comma := false
 	lineNo, rows := 0, 0
 	var fields [][]byte
 	for {
-		raw, err := br.ReadSlice('\n')
-		if errors.Is(err, bufio.ErrBufferFull) {
-			return nil, perr(lineNo+1, 0, fmt.Errorf("%w: longer than %d bytes", ErrTooLong, maxLineLength))
+		raw, last, err := nextLine(br, lineNo == 0)
+		if err != nil {
+			return nil, perr(lineNo+1, 0, err)
 		}
-		if err != nil && err != io.EOF {
-			return nil, perr(lineNo+1, 0, fmt.Errorf("%w: reading: %v", ErrSyntax, err))
-		}
-		if len(raw) == 0 && err == io.EOF {
+		if raw == nil {
 			break
 		}
 		lineNo++
-		if lineNo == 1 {
-			raw = bytes.TrimPrefix(raw, utf8BOM) // a byte-order mark some editors write
-		}
 		line := bytes.TrimSpace(raw)
 		if len(line) > 0 && line[0] != '#' {
 			if nf == 0 {
@@ -114,7 +110,7 @@ func ReadOverrides(r io.Reader, name string) (*Overrides, error) {
 				}
 			}
 		}
-		if err == io.EOF {
+		if last {
 			break
 		}
 	}

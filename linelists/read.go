@@ -152,15 +152,12 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 	perr := func(line, col int, err error) error {
 		return &ParseError{File: opts.Name, Line: line, Column: col, Err: err}
 	}
-	br := bufio.NewReaderSize(r, maxLineLength)
-	if magic, _ := br.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
-		zr, err := gzip.NewReader(br)
-		if err != nil {
-			return fr, perr(0, 0, fmt.Errorf("%w: gzip header: %v", ErrSyntax, err))
-		}
-		defer zr.Close()
-		br = bufio.NewReaderSize(zr, maxLineLength)
-	} else if n := inputSize(r); n > 0 {
+	br, gzipped, closeText, err := openText(r)
+	if err != nil {
+		return fr, perr(0, 0, err)
+	}
+	defer closeText()
+	if n := inputSize(r); !gzipped && n > 0 {
 		// Room for the lines, estimated from the input's size (rows of
 		// our format are rarely under 40 bytes); appends grow it if not.
 		b.reserve(int(min(n/40, 1<<30)))
@@ -187,27 +184,18 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 	medium := MediumDefault
 	started := false
 	for {
-		raw, err := br.ReadSlice('\n')
-		if errors.Is(err, bufio.ErrBufferFull) {
-			return fr, perr(lineNo+1, 0, fmt.Errorf("%w: longer than %d bytes", ErrTooLong, maxLineLength))
+		raw, last, err := nextLine(br, lineNo == 0)
+		if err != nil {
+			return fr, perr(lineNo+1, 0, err)
 		}
-		if err != nil && err != io.EOF {
-			if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, gzip.ErrChecksum) || errors.Is(err, gzip.ErrHeader) {
-				return fr, perr(lineNo+1, 0, fmt.Errorf("%w: compressed data: %v", ErrSyntax, err))
-			}
-			return fr, perr(lineNo+1, 0, fmt.Errorf("reading: %w", err))
-		}
-		if len(raw) == 0 && err == io.EOF {
+		if raw == nil {
 			break
 		}
 		lineNo++
-		if lineNo == 1 {
-			raw = bytes.TrimPrefix(raw, utf8BOM) // a byte-order mark some editors write
-		}
 		line := bytes.TrimRight(raw, "\r\n")
 		line = bytes.TrimSpace(line)
 		if len(line) == 0 {
-			if err == io.EOF {
+			if last {
 				break
 			}
 			continue
@@ -228,7 +216,7 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 					}
 				}
 			}
-			if err == io.EOF {
+			if last {
 				break
 			}
 			continue
@@ -268,7 +256,7 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 				return fr, perr(lineNo, 0, herr)
 			}
 			haveHeader = true
-			if err == io.EOF {
+			if last {
 				break
 			}
 			continue
@@ -282,7 +270,7 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 			return fr, res.err
 		}
 		b.addChunk(&res, &fr)
-		if err == io.EOF {
+		if last {
 			break
 		}
 		if err := b.readRows(br, lineNo, rp, opts.Name, opts.Workers, &fr); err != nil {
@@ -730,4 +718,45 @@ func speciesSet(list []Species) map[Species]bool {
 		m[s] = true
 	}
 	return m
+}
+
+// nextLine reads the next line from br, whose buffer (maxLineLength) bounds
+// the line's length. It returns the raw line, nil at the end of the input,
+// and whether it is the last line; first removes a byte-order mark some
+// editors write. A line that is too long, compressed data that are damaged
+// or a failing reader give a cause error for the caller to place.
+func nextLine(br *bufio.Reader, first bool) (raw []byte, last bool, err error) {
+	raw, err = br.ReadSlice('\n')
+	switch {
+	case err == nil:
+	case err == io.EOF:
+		if len(raw) == 0 {
+			return nil, true, nil
+		}
+		last = true
+	case errors.Is(err, bufio.ErrBufferFull):
+		return nil, false, fmt.Errorf("%w: longer than %d bytes", ErrTooLong, maxLineLength)
+	case errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, gzip.ErrChecksum) || errors.Is(err, gzip.ErrHeader):
+		return nil, false, fmt.Errorf("%w: compressed data: %v", ErrSyntax, err)
+	default:
+		return nil, false, fmt.Errorf("reading: %w", err)
+	}
+	if first {
+		raw = bytes.TrimPrefix(raw, utf8BOM)
+	}
+	return raw, last, nil
+}
+
+// openText returns a reader of r's text, decompressing gzip input
+// (recognised by its magic bytes), and a function that releases it.
+func openText(r io.Reader) (br *bufio.Reader, gzipped bool, closeFn func(), err error) {
+	br = bufio.NewReaderSize(r, maxLineLength)
+	if magic, _ := br.Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return nil, true, nil, fmt.Errorf("%w: gzip header: %v", ErrSyntax, err)
+		}
+		return bufio.NewReaderSize(zr, maxLineLength), true, func() { zr.Close() }, nil
+	}
+	return br, false, func() {}, nil
 }
