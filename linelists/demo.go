@@ -80,7 +80,7 @@ type DemoStage struct {
 //     neighbours, and its singly ionised lines from the ground need ~3 eV.
 func DemoPlan() []DemoElement {
 	const lgLight, sdLight = -1.8, 1.0 // log gf of the d-shell ions
-	const lgLan, sdLan = -2.9, 1.3     // log gf of the f-shell ions
+	const lgLan, sdLan = -3.1, 1.3     // log gf of the f-shell ions
 	el := func(sym string, st ...DemoStage) DemoElement {
 		return DemoElement{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: st}
 	}

@@ -6,6 +6,10 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"broadline/linelists"
+	"broadline/opacity"
+	"broadline/spectra"
 )
 
 // TestReadScenario reads the committed demo scenario and checks that bad
@@ -102,5 +106,78 @@ func TestScenarioTruth(t *testing.T) {
 	}
 	if _, err := sc.LoadStore(os.DirFS("."), "nowhere"); err == nil {
 		t.Error("missing line files: no error")
+	}
+}
+
+// TestDemoOpacityRanges checks that the invented demo atoms give expansion
+// opacities in the published ranges of REFERENCES.md ("Expansion opacity":
+// Tanaka et al. 2020, MNRAS 496, 1369, confirmed there; Kasen et al. 2013,
+// ApJ 774, 25, from memory): at ρ = 1e-13 g cm⁻³, T = 5000 K, t = 1 d, the Planck-mean
+// expansion opacity over 0.35–2.5 µm of pure Nd is ~10–30 cm² g⁻¹ and that of
+// a lanthanide-free light mix (the demo's Sr, Y and Zr) ~0.1–5; the demo
+// scenario's light elements with 7.5 % lanthanides (Kr and Te, which have no
+// demo lines, for the rest) fall in the lanthanide-rich range. The ranges are order-of-magnitude sanity bounds,
+// so the test allows them as published.
+func TestDemoOpacityRanges(t *testing.T) {
+	t.Parallel()
+	if testing.Short() {
+		t.Skip("reads the big demo lists")
+	}
+	b := linelists.NewBuilder()
+	for _, el := range []string{"ca", "sr", "y", "zr", "ce", "nd", "sm", "eu"} {
+		for _, name := range []string{"demo_" + el + ".txt.gz", "demo_" + el + "_levels.txt.gz"} {
+			if el == "ca" && strings.HasSuffix(name, "_levels.txt.gz") {
+				continue
+			}
+			f, err := os.Open("../../app/demo/lines/" + name)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if strings.HasSuffix(name, "_levels.txt.gz") {
+				_, err = b.ReadLevels(f, linelists.LevelsOptions{Name: name})
+			} else {
+				_, err = b.Read(f, linelists.ReadOptions{Name: name})
+			}
+			f.Close()
+			if err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	st, _ := b.Build()
+	grid, err := opacity.LinearGrid(3500, 25000, 100)
+	if err != nil {
+		t.Fatal(err)
+	}
+	planck := func(mix string) float64 {
+		c, err := opacity.ParseComposition(mix)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := opacity.SolveAtoms(c, 1e-13, 5000, opacity.StoreAtoms(st))
+		if err != nil {
+			t.Fatal(err)
+		}
+		x, err := opacity.ExpansionOpacity(context.Background(), st, p, spectra.Day, grid, 2)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return x.PlanckMean(5000)
+	}
+	const light = "Sr=0.4,Y=0.1,Zr=0.5"
+	nd, lf := planck("Nd=1"), planck(light)
+	t.Logf("Planck-mean κ: Nd %.3g, %s %.3g cm² g⁻¹", nd, light, lf)
+	if nd < 10 || nd > 30 {
+		t.Errorf("pure Nd: κ = %.3g cm² g⁻¹, want 10–30", nd)
+	}
+	if lf < 0.1 || lf > 5 {
+		t.Errorf("%s: κ = %.3g cm² g⁻¹, want 0.1–5", light, lf)
+	}
+	// The demo scenario's light elements with 7.5 % lanthanides in the
+	// proportions of the scenario: lanthanide-rich.
+	rich := planck("Ca=0.002,Sr=0.03,Y=0.002,Zr=0.008,Ce=0.02,Nd=0.035,Sm=0.0125,Eu=0.0075,Kr=0.5,Te=0.38")
+	t.Logf("lanthanide-rich mix: κ = %.3g cm² g⁻¹", rich)
+	if rich < 10 || rich > 30 {
+		t.Errorf("lanthanide-rich mix: κ = %.3g cm² g⁻¹, want 10–30", rich)
 	}
 }

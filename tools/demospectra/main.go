@@ -49,7 +49,7 @@ func demoScenario() *synth.Scenario {
 		Label: "INVENTED DEMONSTRATION DATA: a fictional event, an invented distance, invented epochs, " +
 			"invented line lists and an invented spectrograph. Not an observation; do not use for science. " +
 			"The composition is that of an invented lanthanide-poor (blue) component: Sr 3 %, Y and Zr below it, " +
-			"lanthanides 2e-4 in all, a little Ca. Se, Br, Kr, Rb, Te and Xe (79 % of the mass) have no demo " +
+			"lanthanides 1.5e-4 in all, a little Ca. Se, Br, Kr, Rb, Te and Xe (80 % of the mass) have no demo " +
 			"line list; their low ions have (nearly) closed p shells and few lines from levels populated at a few " +
 			"thousand K, so leaving them out is a fair demo approximation. Mo, Ru and Pd (16 %) also have no demo " +
 			"list, though their real ions have lines like Zr's: the demo's opacity is incomplete there, as real " +
@@ -58,8 +58,8 @@ func demoScenario() *synth.Scenario {
 		DistanceMpc: 62,
 		LineFiles:   lines,
 		LevelFiles:  levels,
-		MassFractions: "Ca=0.002,Sr=0.03,Y=0.003,Zr=0.01,Ce=5e-5,Nd=1e-4,Sm=3.5e-5,Eu=1.5e-5," +
-			"Se=0.25,Br=0.04,Kr=0.25,Rb=0.05,Mo=0.05,Ru=0.06,Pd=0.05,Te=0.13,Xe=0.0748",
+		MassFractions: "Ca=0.002,Sr=0.03,Y=0.002,Zr=0.008,Ce=4e-5,Nd=7e-5,Sm=2.5e-5,Eu=1.5e-5," +
+			"Se=0.25,Br=0.04,Kr=0.25,Rb=0.05,Mo=0.05,Ru=0.06,Pd=0.05,Te=0.13,Xe=0.07785",
 		EjectaMassSolar: 0.025,
 		InnerVelocity:   0.05,
 		OuterVelocity:   0.35,
