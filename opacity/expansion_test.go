@@ -317,3 +317,9 @@ func TestAddEscapes(t *testing.T) {
 		}
 	}
 }
+
+func TestBits708(t *testing.T) {
+	if math.Float64frombits(bits708) != 708 {
+		t.Errorf("bits708 is %v, not 708", math.Float64frombits(bits708))
+	}
+}
