@@ -69,7 +69,15 @@ func run(dir string, seed uint64) error {
 			bytesOut += n
 		}
 		total += s.Len()
-		fmt.Printf("%-18s %7d lines, %5d levels, %s\n", el.File+".txt.gz", s.Len(), len(s.Levels.Energy), strings.Join(species, ", "))
+		perSpecies := make([]int, len(s.SpeciesTable))
+		for _, k := range s.Species {
+			perSpecies[k]++
+		}
+		var counts []string
+		for k, sp := range s.SpeciesTable {
+			counts = append(counts, fmt.Sprintf("%s %d", sp, perSpecies[k]))
+		}
+		fmt.Printf("%-18s %7d lines, %5d levels (%s)\n", el.File+".txt.gz", s.Len(), len(s.Levels.Energy), strings.Join(counts, ", "))
 	}
 	fmt.Printf("total %d lines, %.2f MB compressed\n", total, float64(bytesOut)/1e6)
 	return nil
