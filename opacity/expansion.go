@@ -137,7 +137,7 @@ func (ls *Lines) Expansion(ctx context.Context, p *Plasma, t float64, g Grid, wo
 	if err := g.check(); err != nil {
 		return nil, err
 	}
-	lev := levelTerms(nil, PlasmaLevelDensities(nil, st, p), t)
+	lev := plasmaLevelTerms(st, p, t)
 	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, spectra.HCOverK/p.Temperature)
 }
 

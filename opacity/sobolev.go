@@ -144,6 +144,26 @@ func levelTerms(dst, levelDensity []float64, t float64) []float64 {
 	return dst
 }
 
+// plasmaLevelTerms is levelTerms of PlasmaLevelDensities in one pass over
+// the levels: (π e²/mₑc)·10⁻⁸·t·(N_ion/U)·e^{−E_l/kT}.
+func plasmaLevelTerms(st *linelists.Store, p *Plasma, t float64) []float64 {
+	lv := st.Levels
+	if len(lv.Species) != len(lv.Energy) {
+		panic(fmt.Sprintf("opacity: %d level species for %d levels", len(lv.Species), len(lv.Energy)))
+	}
+	sf := SpeciesFactors(nil, st, p)
+	c := spectra.ClassicalLineCrossSection * spectra.Angstrom * t
+	for i := range sf {
+		sf[i] *= c
+	}
+	beta := spectra.ElectronVolt / (spectra.Boltzmann * p.Temperature)
+	dst := make([]float64, len(lv.Energy))
+	for l, s := range lv.Species {
+		dst[l] = sf[s] * fastExp(-lv.Energy[l]*beta)
+	}
+	return dst
+}
+
 func checkTT(T, t float64) error {
 	if !(T > 0) || math.IsInf(T, 0) {
 		return fmt.Errorf("opacity: %w: temperature %v K (want a finite value > 0)", ErrInput, T)
