@@ -15,15 +15,16 @@ import (
 //
 // The invented atoms are shaped after the qualitative statistics of
 // published theoretical line lists of r-process elements (from memory, not
-// their numbers): ions with open d shells (Sr, Y, Zr) have a few hundred
-// levels and a few hundred to a few thousand lines in the optical and
+// their numbers): ions with open d shells (Sr, Y, Zr) have some hundred
+// levels below ~5 eV and hundreds to a few thousand lines in the optical and
 // near-infrared, and their levels of the parity opposite to the ground's
 // start some 2–3 eV up, so that their strong lines from low levels fall in
 // the blue and ultraviolet; ions with open f shells (the lanthanides) have
 // thousands of levels of both parities within the first one or two eV and
 // 10⁵–10⁶ lines, most of them weak. The demo keeps that contrast (a factor
-// of about 50–100 in line count) at a size that fits the program: a real
-// list of a lanthanide ion is 10–100 times longer still.
+// of about 65–400 in line count between a lanthanide and a d-shell element)
+// at a size that fits the program (~3 MB compressed): a real list of a
+// lanthanide ion is 10–100 times longer still.
 
 // DemoElement is one element of the demo line lists and what to invent for
 // it.
@@ -57,8 +58,8 @@ type DemoStage struct {
 	// at a few thousand K; 0 draws them uniformly, as a complete list of a
 	// small ion has lines from every level.
 	LowerScale float64
-	// LogGFMean and LogGFSigma are the mean and spread of the normal
-	// distribution log gf is drawn from (clipped to −7…+0.9).
+	// LogGFMean and LogGFSigma are the mean and spread at 5000 Å of the
+	// normal distribution log gf is drawn from (see demoLines).
 	LogGFMean, LogGFSigma float64
 }
 
@@ -70,12 +71,14 @@ type DemoStage struct {
 //   - Sr: Sr II has the real lines only (its invented levels begin above
 //     5.5 eV, where the real ion's 6s and 5d levels lie, so their lines are
 //     weak at kilonova temperatures); Sr I and Sr III are small.
-//   - Y, Zr (open 4d shell): ~10² levels per ion, opposite parity from
-//     ~1.3–2 eV (neutral) and ~3 eV (singly ionised), 10²–10³ lines,
-//     log gf centred near −1.5 (fewer, on average stronger lines).
-//   - Ce, Nd, Sm (open 4f shell): ~10³ levels per ion, both parities from
-//     a few tenths of an eV to ~1.5 eV, 10⁴–10⁵ lines per ion, log gf
-//     centred near −2.6 with σ 1.3 (many weak lines).
+//   - Y, Zr (open 4d shell): ~10² levels per ion in a couple of eV per
+//     parity, opposite parity from ~1.3–2 eV (neutral) and ~3 eV (singly
+//     ionised), 10²–10³ lines per element, log gf centred near −1.8 with
+//     σ 1.0 (fewer, on average stronger lines), lower levels uniform.
+//   - Ce, Nd, Sm (open 4f shell): ~10³ levels per ion over ~10 eV, the
+//     ground's parity from the ground up and the other from 1–2 eV,
+//     10⁴–10⁵ lines per ion, log gf centred near −3.1 with σ 1.3 (many
+//     weak lines), lower levels weighted exp(−E/2 eV).
 //   - Eu (half-filled 4f shell): fewer levels and lines than its
 //     neighbours, and its singly ionised lines from the ground need ~3 eV.
 func DemoPlan() []DemoElement {
