@@ -452,11 +452,11 @@ func (m *Model) warnings(s *state) []string {
 		has[int(sp.Z)] = true
 	}
 	var out []string
-	var lower []string
+	var lower, lineless []string
 	for _, e := range p.Elements {
 		el, _ := linelists.ElementByZ(e.Z)
 		if !has[e.Z] {
-			out = append(out, fmt.Sprintf("%s has no lines in the line lists: it only supplies electrons", el.Symbol))
+			lineless = append(lineless, el.Symbol)
 			continue
 		}
 		for j := 0; j < e.Stages; j++ {
@@ -466,6 +466,13 @@ func (m *Model) warnings(s *state) []string {
 				lower = append(lower, sp.String())
 			}
 		}
+	}
+	switch len(lineless) {
+	case 0:
+	case 1:
+		out = append(out, fmt.Sprintf("%s has no lines in the line lists: it only supplies electrons", lineless[0]))
+	default:
+		out = append(out, fmt.Sprintf("%s have no lines in the line lists: they only supply electrons", strings.Join(lineless, ", ")))
 	}
 	if len(lower) > 0 {
 		out = append(out, fmt.Sprintf("partition functions are lower bounds (only the levels the line lists name, or the ground level) for %s",

@@ -184,6 +184,15 @@ func TestModelSpectrum(t *testing.T) {
 	if len(rte.Warnings) != 2 || !strings.Contains(rte.Warnings[0], "Te has no lines") {
 		t.Errorf("warnings with Te: %q", rte.Warnings)
 	}
+	// Several elements without lines are named in one warning.
+	withMore, _ := opacity.ParseComposition("Ca=0.2,Sr=0.3,Nd=0.5,Te=1,Xe=1")
+	rmore, err := m.Spectrum(ctx, withMore, ej, Settings{Preview: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rmore.Warnings) != 2 || !strings.Contains(rmore.Warnings[0], "Te, Xe have no lines") {
+		t.Errorf("warnings with Te and Xe: %q", rmore.Warnings)
+	}
 	sp, err := r.Spectrum(true)
 	if err != nil {
 		t.Fatal(err)
