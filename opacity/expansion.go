@@ -356,11 +356,36 @@ func fusedDepths(dst, wl, gf []float64, lower []uint32, lev []float64, hck float
 	c.x, c.e, c.left = xPrev, e, left
 }
 
-// addEscapes adds λ_l (1 − e^{−τ_l}) to acc[sp[l]] for each line, with
-// the steps of escape written out (the compiler does not inline it) for two
-// lines at a time (10% faster than one: less loop overhead, two independent
-// chains interleaved).
+// addEscapes adds λ_l (1 − e^{−τ_l}) to acc[sp[l]] for each line: with
+// vector instructions four lines at a time (escapesAVX2, in blocks of
+// fusedBlock) where the processor has them, else addEscapesScalar.
 func addEscapes(acc, tau, wl []float64, sp []uint16) {
+	if !vectorEscapes || len(wl) < 4 {
+		addEscapesScalar(acc, tau, wl, sp)
+		return
+	}
+	var buf [fusedBlock]float64
+	tau, sp = tau[:len(wl)], sp[:len(wl)]
+	for lo := 0; lo < len(wl); lo += fusedBlock {
+		hi := min(lo+fusedBlock, len(wl))
+		n4 := lo + (hi-lo)&^3
+		w := buf[:n4-lo]
+		escapesAVX2(w, tau[lo:n4], wl[lo:n4])
+		s := sp[lo:n4]
+		s = s[:len(w)]
+		for i, x := range w {
+			acc[s[i]] += x
+		}
+		if n4 < hi {
+			addEscapesScalar(acc, tau[n4:hi], wl[n4:hi], sp[n4:hi])
+		}
+	}
+}
+
+// addEscapesScalar is addEscapes in portable Go, with the steps of escape
+// written out (the compiler does not inline it) for two lines at a time
+// (10% faster than one: less loop overhead, two chains interleaved).
+func addEscapesScalar(acc, tau, wl []float64, sp []uint16) {
 	const shifter = 0x1.8p52
 	tau, sp = tau[:len(wl)], sp[:len(wl)]
 	n := len(wl) &^ 1
