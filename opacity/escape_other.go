@@ -8,3 +8,7 @@ var vectorEscapes = false
 func escapesAVX2(dst, tau, wl []float64) {
 	panic("opacity: no vector escape loop on this architecture")
 }
+
+func stimAVX2(dst, wl []float64, hck float64) {
+	panic("opacity: no vector loop on this architecture")
+}

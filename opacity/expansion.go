@@ -308,17 +308,40 @@ func (x *Expansion) Grey(from, to float64) (float64, error) {
 // sumFused adds λ_l (1 − e^{−τ_l}) of each line of a run to acc[species],
 // with τ computed as in Sobolev: λ·gf·lev·stim. Lines of species not
 // modelled have lev = 0, so τ = 0. The run is taken in blocks of fusedBlock
-// lines, each in two passes (see fusedBlock): the optical depths into a
-// buffer (fusedDepths), then the escape (addEscapes). The tests hold the
-// result to the formula evaluated directly.
+// lines (see fusedBlock). With vector instructions a block takes three
+// passes: the stimulated-emission factors four at a time (stimAVX2, afresh
+// for every line), the products with the gathered level terms
+// (levelProducts), then the escapes (addEscapes); the last lines of a run
+// that do not fill a group of four, and processors without AVX2, take the
+// portable pair fusedDepths (factor carried along) and addEscapes. The tests
+// hold both to the formula evaluated directly.
 func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck float64, acc []float64) {
-	var buf [fusedBlock]float64
+	var buf, stim [fusedBlock]float64
 	var c stimCarry
 	for lo := 0; lo < len(wl); lo += fusedBlock {
 		hi := min(lo+fusedBlock, len(wl))
 		tau := buf[:hi-lo]
+		if vectorEscapes && hi-lo >= 4 {
+			n4 := lo + (hi-lo)&^3
+			st := stim[:n4-lo]
+			stimAVX2(st, wl[lo:n4], hck)
+			levelProducts(tau, wl[lo:n4], gf[lo:n4], lower[lo:n4], lev, st)
+			addEscapes(acc, tau[:n4-lo], wl[lo:n4], sp[lo:n4])
+			if n4 == hi {
+				continue
+			}
+			lo, tau = n4, buf[:hi-n4] // the last lines of the run, below
+		}
 		fusedDepths(tau, wl[lo:hi], gf[lo:hi], lower[lo:hi], lev, hck, &c)
 		addEscapes(acc, tau, wl[lo:hi], sp[lo:hi])
+	}
+}
+
+// levelProducts writes τ = λ·gf·lev[lower]·stim of each line into dst.
+func levelProducts(dst, wl, gf []float64, lower []uint32, lev, stim []float64) {
+	dst, gf, lower, stim = dst[:len(wl)], gf[:len(wl)], lower[:len(wl)], stim[:len(wl)]
+	for i, lam := range wl {
+		dst[i] = lam * gf[i] * lev[lower[i]] * stim[i]
 	}
 }
 
@@ -415,10 +438,10 @@ func addEscapesScalar(acc, tau, wl []float64, sp []uint16) {
 // +Inf and NaN there) with one integer comparison.
 const bits708 = 0x4086200000000000
 
-// fusedBlock is the number of lines sumFused takes at a time. Its first pass
-// (a division, the stimulated-emission step and a gather of the level
-// factor) is short, so the processor keeps many of its gathers in flight;
-// the second pass reads the depths back from the first level cache.
+// fusedBlock is the number of lines sumFused takes at a time. Its depth pass
+// (the stimulated-emission factor and a gather of the level term) is short,
+// so the processor keeps many of its gathers in flight; the next pass reads
+// the depths back from the first level cache.
 const fusedBlock = 256
 
 // stimRefresh bounds the run of lines over which the stimulated-emission

@@ -343,3 +343,29 @@ func TestBits708(t *testing.T) {
 		t.Errorf("bits708 is %v, not 708", math.Float64frombits(bits708))
 	}
 }
+
+// TestStimVector holds the vector stimulated-emission factor to
+// −math.Expm1(−hc/λkT) (the reference) to 3e-14, from x = 1e-6 (where 1 − e^{−x}
+// needs the expm1 form) to beyond 708.
+func TestStimVector(t *testing.T) {
+	if !vectorEscapes {
+		t.Skip("no AVX2 and FMA")
+	}
+	r := rand.New(rand.NewPCG(6, 7))
+	n := 4000
+	wl := make([]float64, n)
+	for i := range wl {
+		wl[i] = 3000 + 22000*r.Float64()
+	}
+	dst := make([]float64, n)
+	for _, T := range []float64{10, 1000, 5000, 1e5, 1e7, 1e10} {
+		hck := spectra.HCOverK / T
+		stimAVX2(dst, wl, hck)
+		for i, lam := range wl {
+			want := -math.Expm1(-hck / lam)
+			if !scalar.EqualWithinAbsOrRel(dst[i], want, 0, 3e-14) {
+				t.Fatalf("T = %v K, λ = %v Å: 1 − e^−x = %v, want %v", T, lam, dst[i], want)
+			}
+		}
+	}
+}
