@@ -137,7 +137,10 @@ func (ls *Lines) Expansion(ctx context.Context, p *Plasma, t float64, g Grid, wo
 	if err := g.check(); err != nil {
 		return nil, err
 	}
-	lev := plasmaLevelTerms(st, p, t)
+	lev, err := plasmaLevelTerms(ctx, st, p, t, workers)
+	if err != nil {
+		return nil, err
+	}
 	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, spectra.HCOverK/p.Temperature)
 }
 

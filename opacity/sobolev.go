@@ -145,8 +145,9 @@ func levelTerms(dst, levelDensity []float64, t float64) []float64 {
 }
 
 // plasmaLevelTerms is levelTerms of PlasmaLevelDensities in one pass over
-// the levels: (π e²/mₑc)·10⁻⁸·t·(N_ion/U)·e^{−E_l/kT}.
-func plasmaLevelTerms(st *linelists.Store, p *Plasma, t float64) []float64 {
+// the levels, on up to workers goroutines:
+// (π e²/mₑc)·10⁻⁸·t·(N_ion/U)·e^{−E_l/kT}.
+func plasmaLevelTerms(ctx context.Context, st *linelists.Store, p *Plasma, t float64, workers int) ([]float64, error) {
 	lv := st.Levels
 	if len(lv.Species) != len(lv.Energy) {
 		panic(fmt.Sprintf("opacity: %d level species for %d levels", len(lv.Species), len(lv.Energy)))
@@ -158,10 +159,12 @@ func plasmaLevelTerms(st *linelists.Store, p *Plasma, t float64) []float64 {
 	}
 	beta := spectra.ElectronVolt / (spectra.Boltzmann * p.Temperature)
 	dst := make([]float64, len(lv.Energy))
-	for l, s := range lv.Species {
-		dst[l] = sf[s] * fastExp(-lv.Energy[l]*beta)
-	}
-	return dst
+	err := parallel(ctx, len(dst), workers, func(lo, hi int) {
+		for l, s := range lv.Species[lo:hi] {
+			dst[lo+l] = sf[s] * fastExp(-lv.Energy[lo+l]*beta)
+		}
+	})
+	return dst, err
 }
 
 func checkTT(T, t float64) error {
