@@ -369,3 +369,37 @@ func TestStimVector(t *testing.T) {
 		}
 	}
 }
+
+// TestExpansionPortable: with the vector loops switched off (as on a
+// processor without AVX2) the expansion opacity is the same to 1e-12 per
+// bin, on a store whose bins hold runs of every length modulo four.
+func TestExpansionPortable(t *testing.T) {
+	ctx := context.Background()
+	st := randomStore(20001, speciesOf("Ca", "Sr", "Nd"), 40, 13)
+	p, err := Solve(mustComp(t, "Ca=0.4,Sr=0.3,Nd=0.3"), 1e-13, 5000, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ls, err := NewLines(ctx, st, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vector := vectorEscapes
+	defer func() { vectorEscapes = vector }()
+	g := must(LinearGrid(3000, 25000, 7.3))
+	var x [2]*Expansion
+	for v, on := range []bool{false, vector} {
+		vectorEscapes = on
+		if x[v], err = ls.Expansion(ctx, p, spectra.Day, g, 2); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if !vector {
+		t.Skip("no AVX2 and FMA: only the portable loops exist here")
+	}
+	for k := range x[0].Kappa {
+		if !scalar.EqualWithinAbsOrRel(x[1].Kappa[k], x[0].Kappa[k], 1e-300, 1e-12) {
+			t.Errorf("bin %d: vector κ %.15g, portable %.15g", k, x[1].Kappa[k], x[0].Kappa[k])
+		}
+	}
+}
