@@ -431,18 +431,24 @@ func scatter(I []float64, j0 int, pts []point, a []float32, n int) {
 	}
 }
 
-// scatterPoint applies one resonance point.
-func scatterPoint(I []float64, j0 int, p point, a []float32, n int) {
+// pointSpan returns the part of I (the observed points from j0) that the
+// resonance point p reaches, and the matching runs of the tabulated
+// strengths at p's two velocity nodes (empty slices where it reaches none).
+func pointSpan(I []float64, j0 int, p point, a []float32, n int) (seg []float64, a0, a1 []float32) {
 	lo, hi := span(j0, len(I), p.k, n)
 	if lo >= hi {
-		return
+		return nil, nil, nil
 	}
 	base := j0 - p.k
-	a0 := a[p.s*n+base+lo : p.s*n+base+hi]
-	a1 := a[(p.s+1)*n+base+lo : (p.s+1)*n+base+hi]
-	seg := I[lo:hi]
-	a1 = a1[:len(seg)]
-	a0 = a0[:len(seg)]
+	seg = I[lo:hi]
+	a0 = a[p.s*n+base+lo : p.s*n+base+hi]
+	a1 = a[(p.s+1)*n+base+lo : (p.s+1)*n+base+hi]
+	return seg, a0[:len(seg)], a1[:len(seg)]
+}
+
+// scatterPoint applies one resonance point.
+func scatterPoint(I []float64, j0 int, p point, a []float32, n int) {
+	seg, a0, a1 := pointSpan(I, j0, p, a, n)
 	f, w, c := p.f, p.w, p.frac
 	for x := range seg {
 		t := c * (float64(a0[x]) + f*float64(a1[x]-a0[x]))
@@ -452,18 +458,8 @@ func scatterPoint(I []float64, j0 int, p point, a []float32, n int) {
 
 // absorb applies I ← I e^{−τ} for the points pts.
 func absorb(I []float64, j0 int, pts []point, a []float32, n int) {
-	m := len(I)
 	for _, p := range pts {
-		lo, hi := span(j0, m, p.k, n)
-		if lo >= hi {
-			continue
-		}
-		base := j0 - p.k
-		a0 := a[p.s*n+base+lo : p.s*n+base+hi]
-		a1 := a[(p.s+1)*n+base+lo : (p.s+1)*n+base+hi]
-		seg := I[lo:hi]
-		a1 = a1[:len(seg)]
-		a0 = a0[:len(seg)]
+		seg, a0, a1 := pointSpan(I, j0, p, a, n)
 		f, c := p.f, p.frac
 		for x := range seg {
 			seg[x] *= 1 - c*(float64(a0[x])+f*float64(a1[x]-a0[x]))
