@@ -13,7 +13,7 @@ func TestNoGUIInComputation(t *testing.T) {
 	if err != nil {
 		t.Skip("go tool not on PATH")
 	}
-	out, err := exec.Command(gobin, "list", "-deps", "../linelists/...", "../spectra/...", "../opacity/...").CombinedOutput()
+	out, err := exec.Command(gobin, "list", "-deps", "../linelists/...", "../spectra/...", "../opacity/...", "../tools/...").CombinedOutput()
 	if err != nil {
 		t.Fatalf("go list: %v\n%s", err, out)
 	}
