@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/optimize"
 )
 
 // BlackbodyFitOptions configure FitBlackbody. The zero value fits every
@@ -79,9 +80,8 @@ var ErrFit = errors.New("fit failed")
 // unit frequency are compared with the model converted to that unit; an
 // arbitrary flux unit gives an arbitrary scale (and no radius). For a
 // given T the best Scale is linear least squares, so the fit minimises the
-// profile χ²(T): a grid in ln T, then a golden-section search. (gonum's
-// optimize package is not used because it needs a go.mod change; see
-// docs/spectra.md.) The curvature is taken with gonum/diff/fd.
+// profile χ²(T): a grid in ln T, then gonum's Nelder–Mead minimiser
+// (gonum.org/v1/gonum/optimize) from the best grid point. The curvature is taken with gonum/diff/fd.
 func FitBlackbody(s *Spectrum, opt BlackbodyFitOptions) (*BlackbodyFit, error) {
 	if s.Meta.FluxUnit == FluxNormalized {
 		return nil, fmt.Errorf("spectra: blackbody fit: %w: the flux is already normalised", ErrFit)
@@ -174,8 +174,8 @@ func FitBlackbody(s *Spectrum, opt BlackbodyFitOptions) (*BlackbodyFit, error) {
 	if bestS <= 0 {
 		return nil, fmt.Errorf("spectra: blackbody fit: %w: no positive blackbody matches the flux", ErrFit)
 	}
-	// Refine on the profile χ²(T) = min over Scale, by golden-section
-	// search in ln T around the best grid point.
+	// Refine on the profile χ²(T) = min over Scale, in ln T from the best
+	// grid point.
 	step := math.Log(tmax/tmin) / (ngrid - 1)
 	prof := func(lnT float64) float64 {
 		T := math.Exp(lnT)
@@ -185,7 +185,10 @@ func FitBlackbody(s *Spectrum, opt BlackbodyFitOptions) (*BlackbodyFit, error) {
 		}
 		return chi2(T, S)
 	}
-	lnT := goldenMin(prof, math.Log(bestT)-step, math.Log(bestT)+step, 1e-10)
+	lnT, err := minimizeProfile(prof, math.Log(bestT), step)
+	if err != nil {
+		return nil, fmt.Errorf("spectra: blackbody fit: %w: %v", ErrFit, err)
+	}
 	T := math.Exp(lnT)
 	S := bestScale(T)
 	if T <= tmin*math.Exp(step/2) || T >= tmax*math.Exp(-step/2) {
@@ -262,26 +265,22 @@ func (s *Spectrum) Normalize(continuum []float64) (int, error) {
 	return bad, nil
 }
 
-// goldenMin returns the x in [a, b] minimising f, to within tol·|x|, by
-// golden-section search (f is assumed unimodal on [a, b]).
-func goldenMin(f func(float64) float64, a, b, tol float64) float64 {
-	const g = 0.6180339887498949 // (√5 − 1)/2
-	c := b - g*(b-a)
-	d := a + g*(b-a)
-	fc, fd := f(c), f(d)
-	for range 200 {
-		if math.Abs(b-a) <= tol*(math.Abs(c)+math.Abs(d)) {
-			break
-		}
-		if fc < fd {
-			b, d, fd = d, c, fc
-			c = b - g*(b-a)
-			fc = f(c)
-		} else {
-			a, c, fc = c, d, fd
-			d = a + g*(b-a)
-			fd = f(d)
-		}
+// minimizeProfile returns the ln T that minimises the profile χ² prof,
+// starting from x0 with an initial simplex step, by gonum's Nelder–Mead
+// minimiser (gonum.org/v1/gonum/optimize), converged when the best value
+// changes by less than 1e-10 relative over 20 iterations.
+func minimizeProfile(prof func(float64) float64, x0, step float64) (float64, error) {
+	p := optimize.Problem{Func: func(x []float64) float64 { return prof(x[0]) }}
+	set := &optimize.Settings{
+		Converger:       &optimize.FunctionConverge{Absolute: 0, Relative: 1e-10, Iterations: 20},
+		MajorIterations: 2000,
 	}
-	return (a + b) / 2
+	res, err := optimize.Minimize(p, []float64{x0}, set, &optimize.NelderMead{SimplexSize: step})
+	if err != nil {
+		return 0, err
+	}
+	if res.Status != optimize.FunctionConvergence {
+		return 0, fmt.Errorf("minimiser stopped with status %v", res.Status)
+	}
+	return res.X[0], nil
 }
