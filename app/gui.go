@@ -173,6 +173,7 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 	wb.win.SetContent(split)
 	wb.win.SetMainMenu(fyne.NewMainMenu(
 		fyne.NewMenu("Session",
+			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
 		),
 		fyne.NewMenu("Help",
@@ -331,6 +332,35 @@ func (wb *workbench) saveDialog() {
 			}
 			wb.status.SetText("session saved to " + path.Text)
 		}, wb.win)
+}
+
+// openDialog asks for a saved session and shows it; a file that does not
+// fit the dataset is refused with its reason and changes nothing.
+func (wb *workbench) openDialog() {
+	path := widget.NewEntry()
+	path.SetText(defaultSessionPath())
+	dialog.ShowForm("Open session", "Open", "Cancel",
+		[]*widget.FormItem{widget.NewFormItem("File", path)},
+		func(ok bool) {
+			if ok {
+				if err := wb.openSession(path.Text); err != nil {
+					dialog.ShowError(err, wb.win)
+				}
+			}
+		}, wb.win)
+}
+
+// openSession replaces the shown session by the one saved at path.
+func (wb *workbench) openSession(path string) error {
+	s, err := loadSession(path, wb.sess.Dataset, wb.bench.data)
+	if err != nil {
+		return err
+	}
+	*wb.sess = *s
+	wb.syncControls()
+	wb.updateFeatures()
+	wb.recompute()
+	return nil
 }
 
 // defaultSessionPath is session.json in the working directory.

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -114,6 +115,35 @@ func TestWorkbenchOnDemo(t *testing.T) {
 	if off.Chi2/float64(off.N) < 3*red {
 		t.Errorf("χ²/N at half the true velocity %.3f is not clearly worse than at the truth %.3f", off.Chi2/float64(off.N), red)
 	}
+
+	// Save this state, change the epoch, then open the saved file: the
+	// controls and the session return to the saved values.
+	path := filepath.Join(t.TempDir(), "s.json")
+	if err := sess.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	saved := *sess
+	wb.epoch.SetSelectedIndex(2)
+	if sess.Epoch != 2 || sess.PhotosphereVelocity == saved.PhotosphereVelocity {
+		t.Fatalf("epoch change did not reach the session: %+v", sess)
+	}
+	wb.done = nil
+	if err := wb.openSession(path); err != nil {
+		t.Fatal(err)
+	}
+	if *sess != saved || wb.epoch.SelectedIndex() != saved.Epoch || wb.velocity.Value != saved.PhotosphereVelocity {
+		t.Errorf("after opening: session %+v, epoch control %d, velocity control %g; want %+v", sess, wb.epoch.SelectedIndex(), wb.velocity.Value, saved)
+	}
+	// A session for another dataset is refused and changes nothing.
+	bad := saved
+	bad.Dataset = "other"
+	if err := bad.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	if err := wb.openSession(path); err == nil || *sess != saved {
+		t.Errorf("foreign session accepted (err %v), session now %+v", err, sess)
+	}
+	waitDone(t, wb) // let the recomputation started by openSession finish
 }
 
 // TestModelCautions checks that the help text names every approximation the

@@ -110,3 +110,24 @@ func readSession(r io.Reader) (*Session, error) {
 	}
 	return &s, nil
 }
+
+// loadSession reads the session saved at path and checks it against the
+// dataset d it must belong to.
+func loadSession(path, dataset string, d *dataset) (*Session, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, fmt.Errorf("open session: %w", err)
+	}
+	defer f.Close()
+	s, err := readSession(f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	if s.Dataset != dataset {
+		return nil, fmt.Errorf("%s: the session is for dataset %q, not %q", path, s.Dataset, dataset)
+	}
+	if err := s.Validate(d); err != nil {
+		return nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return s, nil
+}
