@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"math"
 	"os"
 	"path/filepath"
@@ -21,23 +20,8 @@ wavelength_A species log_gf lower_energy_cm-1 lower_j
 10327.31 Sr_II -0.35 14836.24 2.5
 `
 
-func writeLinesFile(t *testing.T, name, content string) string {
-	t.Helper()
-	p := filepath.Join(t.TempDir(), name)
-	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
-
-func runCmd(args ...string) (int, string, string) {
-	var out, errb bytes.Buffer
-	s := dispatch(args, &out, &errb)
-	return s, out.String(), errb.String()
-}
-
 func TestLinesSummary(t *testing.T) {
-	p := writeLinesFile(t, "list.txt", linesSample)
+	p := writeTemp(t, "list.txt", linesSample)
 	status, out, errs := runCmd("lines", "summary", p, "--no-cache")
 	if status != 0 {
 		t.Fatalf("status %d: %s", status, errs)
@@ -60,7 +44,7 @@ func TestLinesSummary(t *testing.T) {
 func TestLinesConvertImport(t *testing.T) {
 	// Some other table: nm, cm⁻¹, a reference column, no species column.
 	table := "# from elsewhere\nref lam loggf elow J\nA 849.802 -1.318 13650.19 1.5\nB 854.209 -0.360 13710.88 2.5\n"
-	in := writeLinesFile(t, "table.dat", table)
+	in := writeTemp(t, "table.dat", table)
 	out := filepath.Join(t.TempDir(), "converted.txt.gz")
 	status, stdout, errs := runCmd("lines", "convert", in, "--out", out, "--no-cache",
 		"--columns", "wavelength=lam:nm,log_gf=loggf,lower_energy=elow:cm-1,lower_j=J", "--header-row",
@@ -101,8 +85,8 @@ func checkCoverage(t *testing.T, sum string, wantLo, wantHi float64) {
 }
 
 func TestLinesErrors(t *testing.T) {
-	good := writeLinesFile(t, "good.txt", linesSample)
-	bad := writeLinesFile(t, "bad.txt", "wavelength_A species log_gf lower_energy_eV\n5000 Nd_II -1 0\n5001 Nd_II oops 0\n")
+	good := writeTemp(t, "good.txt", linesSample)
+	bad := writeTemp(t, "bad.txt", "wavelength_A species log_gf lower_energy_eV\n5000 Nd_II -1 0\n5001 Nd_II oops 0\n")
 	outDir := t.TempDir()
 	out := filepath.Join(outDir, "x.txt")
 	for _, tc := range []struct {

@@ -37,10 +37,10 @@ func parseOpacityCSV(t *testing.T, out string) (header []string, rows [][]float6
 }
 
 func TestOpacityCommand(t *testing.T) {
-	lines := writeOpacityTemp(t, "casr.txt", opacityTestList)
+	lines := writeTemp(t, "casr.txt", opacityTestList)
 	args := []string{"opacity", "--lines", lines, "--mass-fractions", "Ca=0.4,Sr=0.3,Nd=0.3", "--temperature", "5000",
 		"--density", "1e-13", "--days", "1", "--from-um", "0.8", "--to-um", "1.3", "--bin-um", "0.1"}
-	s, out, errs := runOpacityCmd(args...)
+	s, out, errs := runCmd(args...)
 	if s != 0 {
 		t.Fatalf("status %d, stderr %q", s, errs)
 	}
@@ -99,7 +99,7 @@ func TestOpacityCommand(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, thr := range []float64{1e-3, 1, 1e3} {
-		s, _, errs := runOpacityCmd(append(append([]string(nil), args...), "--census", strconv.FormatFloat(thr, 'g', -1, 64))...)
+		s, _, errs := runCmd(append(append([]string(nil), args...), "--census", strconv.FormatFloat(thr, 'g', -1, 64))...)
 		if s != 0 {
 			t.Fatalf("census: status %d, %q", s, errs)
 		}
@@ -111,14 +111,14 @@ func TestOpacityCommand(t *testing.T) {
 			}
 		}
 	}
-	if s, _, _ := runOpacityCmd(append(append([]string(nil), args...), "--census", "-1")...); s != 2 {
+	if s, _, _ := runCmd(append(append([]string(nil), args...), "--census", "-1")...); s != 2 {
 		t.Errorf("--census -1: status %d, want 2", s)
 	}
 
 	// A line exactly on an edge belongs to the bin that starts there.
-	edge := writeOpacityTemp(t, "edge.txt", "# medium: vacuum\nwavelength_A species log_gf lower_energy_eV lower_g\n9000.0 Ca_II 0 0 2\n")
+	edge := writeTemp(t, "edge.txt", "# medium: vacuum\nwavelength_A species log_gf lower_energy_eV lower_g\n9000.0 Ca_II 0 0 2\n")
 	args[2] = edge
-	s, out, errs = runOpacityCmd(args...)
+	s, out, errs = runCmd(args...)
 	if s != 0 {
 		t.Fatalf("edge: status %d, %q", s, errs)
 	}
@@ -129,7 +129,7 @@ func TestOpacityCommand(t *testing.T) {
 }
 
 func TestOpacityCommandErrors(t *testing.T) {
-	lines := writeOpacityTemp(t, "casr.txt", opacityTestList)
+	lines := writeTemp(t, "casr.txt", opacityTestList)
 	base := map[string]string{"--lines": lines, "--mass-fractions": "Ca=1", "--temperature": "5000", "--density": "1e-13",
 		"--days": "1", "--from-um": "0.8", "--to-um": "1.3", "--bin-um": "0.1"}
 	order := []string{"--lines", "--mass-fractions", "--temperature", "--density", "--days", "--from-um", "--to-um", "--bin-um"}
@@ -168,7 +168,7 @@ func TestOpacityCommandErrors(t *testing.T) {
 		{with("--lines", lines+".missing"), "--lines"},
 		{with("--temperature", "inf"), "--temperature"},
 	} {
-		s, out, errs := runOpacityCmd(tc.args...)
+		s, out, errs := runCmd(tc.args...)
 		if s != 2 || out != "" || strings.Count(errs, "\n") != 1 || !strings.Contains(errs, tc.flag) {
 			t.Errorf("%v: status %d, stdout %q, stderr %q; want 2, nothing, one line naming %s", tc.args[1:], s, out, errs, tc.flag)
 		}

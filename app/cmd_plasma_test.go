@@ -1,10 +1,8 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
 	"math"
-	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -30,21 +28,6 @@ wavelength_A species log_gf lower_energy_eV lower_g
 12100.00 Fe_II -1.0 0.5 10
 `
 
-func writeOpacityTemp(t *testing.T, name, content string) string {
-	t.Helper()
-	p := filepath.Join(t.TempDir(), name)
-	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return p
-}
-
-func runOpacityCmd(args ...string) (status int, stdout, stderr string) {
-	var out, errb bytes.Buffer
-	s := dispatch(args, &out, &errb)
-	return s, out.String(), errb.String()
-}
-
 type plasmaCmdOut struct {
 	ElectronDensity    float64 `json:"electron_density_cm3"`
 	Iterations         int     `json:"iterations"`
@@ -62,7 +45,7 @@ type plasmaCmdOut struct {
 }
 
 func TestPlasmaCommand(t *testing.T) {
-	s, out, errs := runOpacityCmd("plasma", "--temperature", "5000", "--density", "1e-13", "--mass-fractions", "Ca=0.4,Sr=0.3,Nd=0.3")
+	s, out, errs := runCmd("plasma", "--temperature", "5000", "--density", "1e-13", "--mass-fractions", "Ca=0.4,Sr=0.3,Nd=0.3")
 	if s != 0 {
 		t.Fatalf("status %d, stderr %q", s, errs)
 	}
@@ -103,8 +86,8 @@ func TestPlasmaCommand(t *testing.T) {
 	// Ca II has the ground level (g = 2, added from the element table) and
 	// the lower levels 1.692 eV (g = 4) and 1.700 eV (g = 6), so
 	// U = 2 + 4 e^{−1.692/kT} + 6 e^{−1.700/kT} (definition of U).
-	lines := writeOpacityTemp(t, "casr.txt", opacityTestList)
-	s, out, errs = runOpacityCmd("plasma", "--temperature", "5000", "--density", "1e-13", "--mass-fractions", "Ca=0.4,Sr=0.3,Nd=0.3", "--lines", lines)
+	lines := writeTemp(t, "casr.txt", opacityTestList)
+	s, out, errs = runCmd("plasma", "--temperature", "5000", "--density", "1e-13", "--mass-fractions", "Ca=0.4,Sr=0.3,Nd=0.3", "--lines", lines)
 	if s != 0 {
 		t.Fatalf("with --lines: status %d, stderr %q", s, errs)
 	}
@@ -126,7 +109,7 @@ func TestPlasmaCommand(t *testing.T) {
 // TestPlasmaCommandErrors: bad values give one line naming the flag, exit
 // status 2 and nothing on stdout.
 func TestPlasmaCommandErrors(t *testing.T) {
-	bad := writeOpacityTemp(t, "bad.txt", "wavelength_A species log_gf lower_energy_eV\n8544.44 Ca_II abc 1.7\n")
+	bad := writeTemp(t, "bad.txt", "wavelength_A species log_gf lower_energy_eV\n8544.44 Ca_II abc 1.7\n")
 	ok := []string{"--temperature", "5000", "--density", "1e-13", "--mass-fractions", "Ca=1"}
 	with := func(flag, val string) []string {
 		a := []string{"plasma"}
@@ -158,7 +141,7 @@ func TestPlasmaCommandErrors(t *testing.T) {
 		{append(with("", ""), "--levels", bad), "--levels"},
 		{append(with("", ""), "stray"), "stray"},
 	} {
-		s, out, errs := runOpacityCmd(tc.args...)
+		s, out, errs := runCmd(tc.args...)
 		if s != 2 || out != "" || strings.Count(errs, "\n") != 1 || !strings.Contains(errs, tc.flag) {
 			t.Errorf("%v: status %d, stdout %q, stderr %q; want 2, nothing, one line naming %s", tc.args, s, out, errs, tc.flag)
 		}

@@ -5,8 +5,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 	"testing"
@@ -51,15 +49,6 @@ func parsePrepCSV(t *testing.T, s string) []prepRow {
 		rows = append(rows, r)
 	}
 	return rows
-}
-
-func writeTemp(t *testing.T, name, content string) string {
-	t.Helper()
-	p := filepath.Join(t.TempDir(), name)
-	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	return p
 }
 
 // TestPrepAirRedshiftTelluric: an air-wavelength table is converted with
