@@ -16,14 +16,7 @@ import (
 // scenarios are refused with an error.
 func TestReadScenario(t *testing.T) {
 	t.Parallel()
-	raw, err := os.ReadFile("../../app/demo/spectra/scenario.json")
-	if err != nil {
-		t.Fatal(err)
-	}
-	sc, err := ReadScenario(bytes.NewReader(raw))
-	if err != nil {
-		t.Fatal(err)
-	}
+	sc, raw := demoScenario(t)
 	if !strings.Contains(sc.Label, "INVENTED") || !strings.Contains(sc.Object, "invented") {
 		t.Errorf("demo scenario not labelled as invented: %q, %q", sc.Label, sc.Object)
 	}
@@ -72,14 +65,7 @@ func FuzzReadScenario(f *testing.F) {
 // scattering envelope only redistributes the photosphere's light).
 func TestScenarioTruth(t *testing.T) {
 	t.Parallel()
-	raw, err := os.ReadFile("../../app/demo/spectra/scenario.json")
-	if err != nil {
-		t.Fatal(err)
-	}
-	sc, err := ReadScenario(bytes.NewReader(raw))
-	if err != nil {
-		t.Fatal(err)
-	}
+	sc, _ := demoScenario(t)
 	st, err := sc.LoadStore(os.DirFS("../../app/demo"), "spectra")
 	if err != nil {
 		t.Fatal(err)
@@ -180,4 +166,18 @@ func TestDemoOpacityRanges(t *testing.T) {
 	if rich < 10 || rich > 30 {
 		t.Errorf("lanthanide-rich mix: κ = %.3g cm² g⁻¹, want 10–30", rich)
 	}
+}
+
+// demoScenario reads the committed demo scenario, returning it parsed and raw.
+func demoScenario(t *testing.T) (*Scenario, []byte) {
+	t.Helper()
+	raw, err := os.ReadFile("../../app/demo/spectra/scenario.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc, err := ReadScenario(bytes.NewReader(raw))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return sc, raw
 }
