@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sync"
 
 	"broadline/linelists"
@@ -19,6 +20,9 @@ import (
 type bench struct {
 	data  *dataset
 	store *linelists.Store
+	// loadWarnings are what reading the line lists reported; every
+	// computation's warnings repeat them.
+	loadWarnings []string
 
 	once  sync.Once
 	model *synth.Model
@@ -27,11 +31,11 @@ type bench struct {
 
 // newBench loads the line store of d's scenario.
 func newBench(d *dataset) (*bench, error) {
-	st, err := d.Scenario.LoadStore(d.fsys, d.dir)
+	st, rep, err := d.Scenario.LoadStore(d.fsys, d.dir)
 	if err != nil {
 		return nil, err
 	}
-	return &bench{data: d, store: st}, nil
+	return &bench{data: d, store: st, loadWarnings: rep.Warnings}, nil
 }
 
 // synthModel returns the synthesis model, built on first use.
@@ -93,7 +97,7 @@ func (b *bench) compute(ctx context.Context, s *Session) (*overlay, error) {
 	if err != nil {
 		return nil, err
 	}
-	ov := &overlay{Wavelength: grid, Flux: flux, Preview: res.Preview, Warnings: res.Warnings}
+	ov := &overlay{Wavelength: grid, Flux: flux, Preview: res.Preview, Warnings: append(slices.Clone(b.loadWarnings), res.Warnings...)}
 	for k, i := range idx {
 		if obs.Masked(i) || obs.Uncertainty == nil || !(obs.Uncertainty[i] > 0) {
 			continue

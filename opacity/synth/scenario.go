@@ -162,7 +162,9 @@ func (in Instrument) Pixels() []float64 {
 // LoadStore reads the scenario's line lists and levels files from fsys; their
 // names are relative to dir, the directory of the scenario file (slash
 // separated, as io/fs wants: an embedded file system or os.DirFS both work).
-func (s *Scenario) LoadStore(fsys fs.FS, dir string) (*linelists.Store, error) {
+// The report says what reading found (duplicates, ground levels added,
+// warnings), for the caller to show.
+func (s *Scenario) LoadStore(fsys fs.FS, dir string) (*linelists.Store, linelists.Report, error) {
 	b := linelists.NewBuilder()
 	read := func(name string, f func(r io.Reader) error) error {
 		p := path.Join(dir, name)
@@ -178,7 +180,7 @@ func (s *Scenario) LoadStore(fsys fs.FS, dir string) (*linelists.Store, error) {
 			_, err := b.Read(r, linelists.ReadOptions{Name: name})
 			return err
 		}); err != nil {
-			return nil, err
+			return nil, linelists.Report{}, err
 		}
 	}
 	for _, name := range s.LevelFiles {
@@ -186,11 +188,11 @@ func (s *Scenario) LoadStore(fsys fs.FS, dir string) (*linelists.Store, error) {
 			_, err := b.ReadLevels(r, linelists.LevelsOptions{Name: name})
 			return err
 		}); err != nil {
-			return nil, err
+			return nil, linelists.Report{}, err
 		}
 	}
-	st, _ := b.Build()
-	return st, nil
+	st, rep := b.Build()
+	return st, rep, nil
 }
 
 // NewModel returns a model of st over the scenario's wavelength range.

@@ -66,12 +66,17 @@ func FuzzReadScenario(f *testing.F) {
 func TestScenarioTruth(t *testing.T) {
 	t.Parallel()
 	sc, _ := demoScenario(t)
-	st, err := sc.LoadStore(os.DirFS("../../app/demo"), "spectra")
+	st, rep, err := sc.LoadStore(os.DirFS("../../app/demo"), "spectra")
 	if err != nil {
 		t.Fatal(err)
 	}
 	if len(st.SpeciesTable) < 8 {
 		t.Fatalf("demo store has %d species", len(st.SpeciesTable))
+	}
+	// The report comes back: every line counted, and no warning, since the
+	// demo's levels files hold every level its lines name.
+	if rep.Lines != st.Len() || len(rep.Warnings) != 0 {
+		t.Errorf("load report: %d lines for a store of %d, warnings %q", rep.Lines, st.Len(), rep.Warnings)
 	}
 	m, err := sc.NewModel(st)
 	if err != nil {
@@ -90,7 +95,7 @@ func TestScenarioTruth(t *testing.T) {
 			t.Fatalf("F/F_bb = %g at %g Å", r, wave[i])
 		}
 	}
-	if _, err := sc.LoadStore(os.DirFS("."), "nowhere"); err == nil {
+	if _, _, err := sc.LoadStore(os.DirFS("."), "nowhere"); err == nil {
 		t.Error("missing line files: no error")
 	}
 }

@@ -100,9 +100,12 @@ func run(dir string) error {
 	if err := sc.Validate(); err != nil {
 		return err
 	}
-	st, err := LoadStore(dir, sc)
+	st, rep, err := LoadStore(dir, sc)
 	if err != nil {
 		return err
+	}
+	for _, w := range rep.Warnings {
+		fmt.Fprintln(os.Stderr, "demospectra: warning:", w)
 	}
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return err
@@ -125,7 +128,7 @@ func run(dir string) error {
 
 // LoadStore reads the scenario's line lists and levels files, named
 // relative to dir.
-func LoadStore(dir string, sc *synth.Scenario) (*linelists.Store, error) {
+func LoadStore(dir string, sc *synth.Scenario) (*linelists.Store, linelists.Report, error) {
 	// io/fs paths cannot climb with "..", so open the parent and name the
 	// scenario's directory inside it.
 	return sc.LoadStore(os.DirFS(filepath.Join(dir, "..")), filepath.Base(filepath.Clean(dir)))

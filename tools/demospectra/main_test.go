@@ -52,7 +52,7 @@ func TestDemoFiles(t *testing.T) {
 		t.Skip("regenerates three spectra")
 	}
 	sc := loadDemo(t)
-	st, err := LoadStore(demoDir, sc)
+	st, _, err := LoadStore(demoDir, sc)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -134,7 +134,7 @@ func TestInjectionRecovery(t *testing.T) {
 		t.Skip("many model evaluations")
 	}
 	sc := loadDemo(t)
-	st, err := LoadStore(demoDir, sc)
+	st, _, err := LoadStore(demoDir, sc)
 	if err != nil {
 		t.Fatal(err)
 	}
