@@ -2,6 +2,7 @@ package opacity
 
 import (
 	"context"
+	"flag"
 	"fmt"
 	"math"
 	"runtime"
@@ -22,7 +23,7 @@ var benchStores sync.Map // n → *Lines
 
 // benchLines returns the prepared synthetic store of n lines (30 species,
 // 2000 levels each), made once per size.
-func benchLines(b *testing.B, n int) *Lines {
+func benchLines(b testing.TB, n int) *Lines {
 	if s, ok := benchStores.Load(n); ok {
 		return s.(*Lines)
 	}
@@ -34,7 +35,7 @@ func benchLines(b *testing.B, n int) *Lines {
 	return ls
 }
 
-func benchPlasma(b *testing.B, T float64) *Plasma {
+func benchPlasma(b testing.TB, T float64) *Plasma {
 	c := mustComp(b, "Sr=0.1,Y=0.1,Zr=0.1,Ba=0.1,La=0.1,Ce=0.1,Nd=0.1,Sm=0.1,Eu=0.1,Ca=0.1")
 	p, err := Solve(c, 1e-13, T, nil)
 	if err != nil {
@@ -45,11 +46,29 @@ func benchPlasma(b *testing.B, T float64) *Plasma {
 
 var benchSizes = []int{1e5, 1e6, 1e7}
 
+var benchLanes = flag.Int("lanes", -1, "vector width for the expansion benchmarks: 0 (portable loops), 4 (AVX2) or 8 (AVX-512); default the processor's widest")
+
+// useBenchLanes applies -lanes for one benchmark (to time the narrower
+// loops on a processor that has the wider ones).
+func useBenchLanes(b *testing.B) {
+	w := *benchLanes
+	if w < 0 {
+		return
+	}
+	if w != 0 && w != 4 && w != 8 || w > vecLanes {
+		b.Fatalf("-lanes %d: this processor has vector loops of up to %d lanes (0, 4 or 8 are possible)", w, vecLanes)
+	}
+	own := vecLanes
+	vecLanes = w
+	b.Cleanup(func() { vecLanes = own })
+}
+
 // BenchmarkExpansion times the expansion opacity at a new temperature each
 // iteration (plasma solve, level populations, the pass over every line of
 // the prepared store) on a 10-Å grid over 0.3–2.5 µm, using all cores.
 // Metric: lines/s.
 func BenchmarkExpansion(b *testing.B) {
+	useBenchLanes(b)
 	for _, n := range benchSizes {
 		b.Run(fmt.Sprintf("lines=%d", n), func(b *testing.B) {
 			ls := benchLines(b, n)
@@ -121,6 +140,7 @@ func BenchmarkStreamFloor(b *testing.B) {
 // machine disturb less; x-floor-best the ratio of the fastest iteration of
 // each (wall clock), which is what the code does when it has both cores.
 func BenchmarkFloorRatio(b *testing.B) {
+	useBenchLanes(b)
 	ls := benchLines(b, 1e7)
 	g := must(LinearGrid(3000, 25000, 10))
 	workers := runtime.GOMAXPROCS(0)

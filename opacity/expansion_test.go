@@ -309,33 +309,48 @@ func TestAddEscapes(t *testing.T) {
 	}
 	copy(tau, []float64{0, 1e-300, 707.9, 708, 800, math.Inf(1), 1.0 / 128, math.Ln2 / 128})
 	tau[n-1] = 0.3 // the odd line left over
-	// Both loops: the vector one (where the processor has it) and the
-	// portable one, which must agree bit for bit (same steps, same
-	// constants, same fused multiply-adds).
-	vector := vectorEscapes
-	defer func() { vectorEscapes = vector }()
-	var sums [2][]float64
-	for v, on := range []bool{false, vector} {
-		vectorEscapes = on
+	// Every loop the processor has (portable, AVX2, AVX-512), which must
+	// agree bit for bit (same steps, same constants, same fused
+	// multiply-adds).
+	lanes := laneWidths(t)
+	sums := make([][]float64, len(lanes))
+	for v, w := range lanes {
+		vecLanes = w
 		acc := make([]float64, n)
 		addEscapes(acc, tau, wl, sp)
 		for i := range tau {
 			want := -math.Expm1(-tau[i]) * wl[i]
 			if !scalar.EqualWithinAbsOrRel(acc[i], want, 0, 3e-14) {
-				t.Fatalf("vector %v, τ = %v: λ(1 − e^−τ) = %v, want %v", on, tau[i], acc[i], want)
+				t.Fatalf("%d lanes, τ = %v: λ(1 − e^−τ) = %v, want %v", w, tau[i], acc[i], want)
 			}
 		}
 		sums[v] = acc
 	}
-	if !vector {
-		t.Log("no AVX2 and FMA: only the portable loop checked")
-		return
-	}
-	for i := range tau {
-		if math.Float64bits(sums[0][i]) != math.Float64bits(sums[1][i]) {
-			t.Fatalf("τ = %v: vector loop %v, portable %v", tau[i], sums[1][i], sums[0][i])
+	for v := 1; v < len(lanes); v++ {
+		for i := range tau {
+			if math.Float64bits(sums[0][i]) != math.Float64bits(sums[v][i]) {
+				t.Fatalf("τ = %v: %d-lane loop %v, portable %v", tau[i], lanes[v], sums[v][i], sums[0][i])
+			}
 		}
 	}
+}
+
+// laneWidths returns the vector widths to test: 0 (the portable loops) and
+// every width up to the processor's own, and restores vecLanes at the end
+// of the test.
+func laneWidths(t *testing.T) []int {
+	own := vecLanes
+	t.Cleanup(func() { vecLanes = own })
+	lanes := []int{0}
+	for _, w := range []int{4, 8} {
+		if w <= own {
+			lanes = append(lanes, w)
+		}
+	}
+	if len(lanes) < 3 {
+		t.Logf("this processor has vector loops of %d lanes: the wider ones are not checked here", own)
+	}
+	return lanes
 }
 
 func TestBits708(t *testing.T) {
@@ -344,27 +359,54 @@ func TestBits708(t *testing.T) {
 	}
 }
 
-// TestStimVector holds the vector stimulated-emission factor to
-// −math.Expm1(−hc/λkT) (the reference) to 3e-14, from x = 1e-6 (where 1 − e^{−x}
-// needs the expm1 form) to beyond 708.
-func TestStimVector(t *testing.T) {
-	if !vectorEscapes {
+// TestLinesVector holds the vector line loops (stimulated-emission factor,
+// product with the gathered level term, escape, weight λ) to the formula
+// evaluated with the standard library, λ(1 − e^{−τ}) with
+// τ = λ·gf·lv·(−expm1(−hc/λkT)), to 1e-13 (each of the two exponentials errs
+// by < 3e-14), from x = hc/λkT = 1e-6 to beyond 708 and from thin to thick
+// lines; and the AVX2 and AVX-512 loops to each other bit for bit.
+func TestLinesVector(t *testing.T) {
+	lanes := laneWidths(t)[1:]
+	if len(lanes) == 0 {
 		t.Skip("no AVX2 and FMA")
 	}
 	r := rand.New(rand.NewPCG(6, 7))
-	n := 4000
+	n := 4003 // not a multiple of four: the last lines are left alone
 	wl := make([]float64, n)
+	gf := make([]float64, n)
+	lv := make([]float64, n)
 	for i := range wl {
 		wl[i] = 3000 + 22000*r.Float64()
+		gf[i] = math.Pow(10, -6+7*r.Float64())
+		lv[i] = math.Pow(10, -30+30*r.Float64()) // τ from ~1e-33 to ~1e5
 	}
-	dst := make([]float64, n)
-	for _, T := range []float64{10, 1000, 5000, 1e5, 1e7, 1e10} {
-		hck := spectra.HCOverK / T
-		stimAVX2(dst, wl, hck)
-		for i, lam := range wl {
-			want := -math.Expm1(-hck / lam)
-			if !scalar.EqualWithinAbsOrRel(dst[i], want, 0, 3e-14) {
-				t.Fatalf("T = %v K, λ = %v Å: 1 − e^−x = %v, want %v", T, lam, dst[i], want)
+	got := make([][]float64, len(lanes))
+	for v, w := range lanes {
+		vecLanes = w
+		for _, T := range []float64{10, 1000, 5000, 1e5, 1e7, 1e10} {
+			hck := spectra.HCOverK / T
+			dst := make([]float64, n)
+			for i := range dst {
+				dst[i] = -1
+			}
+			linesVec(dst, wl, gf, lv, hck)
+			for i, lam := range wl {
+				tau := lam * gf[i] * lv[i] * -math.Expm1(-hck/lam)
+				want := lam * -math.Expm1(-tau)
+				if i >= n&^3 {
+					want = -1
+				}
+				if !scalar.EqualWithinAbsOrRel(dst[i], want, 0, 1e-13) {
+					t.Fatalf("%d lanes, T = %v K, λ = %v Å (line %d): λ(1 − e^−τ) = %v, want %v", w, T, lam, i, dst[i], want)
+				}
+			}
+			got[v] = append(got[v], dst...)
+		}
+	}
+	for v := 1; v < len(lanes); v++ {
+		for i := range got[0] {
+			if math.Float64bits(got[v][i]) != math.Float64bits(got[0][i]) {
+				t.Fatalf("value %d: %d-lane loop %v, %d-lane loop %v", i, lanes[v], got[v][i], lanes[0], got[0][i])
 			}
 		}
 	}
@@ -384,22 +426,23 @@ func TestExpansionPortable(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	vector := vectorEscapes
-	defer func() { vectorEscapes = vector }()
 	g := must(LinearGrid(3000, 25000, 7.3))
-	var x [2]*Expansion
-	for v, on := range []bool{false, vector} {
-		vectorEscapes = on
+	lanes := laneWidths(t)
+	x := make([]*Expansion, len(lanes))
+	for v, w := range lanes {
+		vecLanes = w
 		if x[v], err = ls.Expansion(ctx, p, spectra.Day, g, 2); err != nil {
 			t.Fatal(err)
 		}
 	}
-	if !vector {
+	if len(lanes) == 1 {
 		t.Skip("no AVX2 and FMA: only the portable loops exist here")
 	}
-	for k := range x[0].Kappa {
-		if !scalar.EqualWithinAbsOrRel(x[1].Kappa[k], x[0].Kappa[k], 1e-300, 1e-12) {
-			t.Errorf("bin %d: vector κ %.15g, portable %.15g", k, x[1].Kappa[k], x[0].Kappa[k])
+	for v := 1; v < len(lanes); v++ {
+		for k := range x[0].Kappa {
+			if !scalar.EqualWithinAbsOrRel(x[v].Kappa[k], x[0].Kappa[k], 1e-300, 1e-12) {
+				t.Errorf("bin %d: %d-lane κ %.15g, portable %.15g", k, lanes[v], x[v].Kappa[k], x[0].Kappa[k])
+			}
 		}
 	}
 }

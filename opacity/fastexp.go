@@ -44,3 +44,11 @@ func fastExp(y float64) float64 {
 	scale := math.Float64frombits(uint64((k>>6)+1023) << 52)
 	return math.FMA(t, q, t) * scale
 }
+
+// expTable16[j] = 2^(j/16), for escape and its vector loops.
+var expTable16 = func() (t [16]float64) {
+	for j := range t {
+		t[j] = math.Exp2(float64(j) / 16)
+	}
+	return t
+}()
