@@ -13,6 +13,12 @@
 // zero Options is the usual choice. Report says what was read, skipped,
 // deduplicated and taken from the cache; WriteSummary prints it.
 //
+//	func LoadContext(ctx context.Context, paths []string, opts Options) (*Store, Report, error)
+//
+// is Load for an interactive caller: it stops when ctx is done (an error
+// wrapping ctx.Err(), no store, no cache left behind) and reports each
+// file's bytes read to Options.Progress.
+//
 // Conventions:
 //   - Wavelengths in the store are vacuum wavelengths in ångström, sorted
 //     ascending. Air wavelengths are converted when a file is read, with the

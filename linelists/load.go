@@ -1,10 +1,12 @@
 package linelists
 
 import (
+	"context"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 )
@@ -48,6 +50,27 @@ type Options struct {
 	// next to its file (name + ".blcache"), or in the user cache directory
 	// when that directory is not writable.
 	CacheDir string
+	// Progress, when not nil, is called as LoadContext reads: once when
+	// each file starts, about once per megabyte of a file parsed from its
+	// text, and once when each file is done. The calls come one at a time
+	// but not always from the caller's goroutine (the text is read ahead of
+	// the parsing workers); it must return quickly (e.g. post the figures
+	// to a widget).
+	Progress func(Progress)
+}
+
+// Progress is what LoadContext reports while it reads.
+type Progress struct {
+	File         string // the line-list file being read
+	Index, Files int    // its index among the files (from 0) and their number
+	// Done and Total are the bytes of the file read so far and its size
+	// (compressed bytes for a gzip file); Total is 0 when unknown.
+	Done, Total int64
+	// Cached says the file's cache is being read (one step, no bytes).
+	Cached bool
+	// FileDone says the file is read; the merge (several files or levels
+	// files) follows the last one.
+	FileDone bool
 }
 
 // cacheSuffix is appended to a line-list file's name for its cache.
@@ -57,17 +80,38 @@ const cacheSuffix = ".blcache"
 // files into one Store, using the binary cache for each line-list file.
 // Lines left out by opts.Filter are counted in the report.
 func Load(paths []string, opts Options) (*Store, Report, error) {
+	return LoadContext(context.Background(), paths, opts)
+}
+
+// LoadContext is Load that gives up when ctx is done — returning an error
+// that wraps ctx.Err() and no store; a cache being written is not left
+// behind half-written (caches are written atomically) — and reports its
+// progress to opts.Progress.
+func LoadContext(ctx context.Context, paths []string, opts Options) (*Store, Report, error) {
+	s, rep, err := load(ctx, paths, opts)
+	if err != nil && ctx.Err() != nil {
+		return nil, Report{}, fmt.Errorf("linelists: loading stopped: %w", ctx.Err())
+	}
+	return s, rep, err
+}
+
+func load(ctx context.Context, paths []string, opts Options) (*Store, Report, error) {
 	var rep Report
 	if len(paths) == 0 {
 		return nil, rep, fmt.Errorf("linelists: Load: no files")
 	}
 	oh := optionsHash(&opts)
 	stores := make([]*Store, 0, len(paths))
-	for _, p := range paths {
-		s, fr, warn, err := loadOne(p, &opts, oh)
+	for i, p := range paths {
+		if err := ctx.Err(); err != nil {
+			return nil, Report{}, err
+		}
+		pr := progressOf(ctx, opts.Progress, p, i, len(paths))
+		s, fr, warn, err := loadOne(p, &opts, oh, pr)
 		if err != nil {
 			return nil, Report{}, err
 		}
+		pr.fileDone()
 		if warn != "" {
 			rep.Warnings = append(rep.Warnings, warn)
 		}
@@ -95,6 +139,9 @@ func Load(paths []string, opts Options) (*Store, Report, error) {
 			if err != nil {
 				return nil, Report{}, err
 			}
+		}
+		if err := ctx.Err(); err != nil {
+			return nil, Report{}, err
 		}
 		var mrep Report
 		s, mrep = b.Build()
@@ -125,9 +172,9 @@ func Load(paths []string, opts Options) (*Store, Report, error) {
 }
 
 // loadOne reads one file through its cache.
-func loadOne(path string, opts *Options, oh uint64) (*Store, FileReport, string, error) {
+func loadOne(path string, opts *Options, oh uint64, pr *progress) (*Store, FileReport, string, error) {
 	if opts.Cache == CacheOff {
-		s, fr, err := parseFile(path, opts)
+		s, fr, err := parseFile(path, opts, pr)
 		return s, fr, "", err
 	}
 	id, err := identify(path, oh)
@@ -137,6 +184,7 @@ func loadOne(path string, opts *Options, oh uint64) (*Store, FileReport, string,
 	cp := cachePath(path, opts.CacheDir)
 	warn := ""
 	if opts.Cache == CacheUse {
+		pr.cached()
 		s, fr, err := readCache(cp, id)
 		if err == nil {
 			fr.Name = path
@@ -146,7 +194,7 @@ func loadOne(path string, opts *Options, oh uint64) (*Store, FileReport, string,
 			warn = fmt.Sprintf("cache %s not used (%v); rebuilt from the source", cp, errors.Unwrap(err))
 		}
 	}
-	s, fr, err := parseFile(path, opts)
+	s, fr, err := parseFile(path, opts, pr)
 	if err != nil {
 		return nil, fr, "", err
 	}
@@ -165,15 +213,19 @@ func loadOne(path string, opts *Options, oh uint64) (*Store, FileReport, string,
 }
 
 // parseFile reads one file without the cache.
-func parseFile(path string, opts *Options) (*Store, FileReport, error) {
+func parseFile(path string, opts *Options, pr *progress) (*Store, FileReport, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, FileReport{}, fmt.Errorf("linelists: %w", err)
 	}
 	defer f.Close()
+	var r io.Reader = f
+	if pr != nil {
+		r = pr.reader(f)
+	}
 	b := NewBuilder()
 	b.KeepDuplicates = opts.KeepDuplicates
-	fr, err := b.Read(f, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium, Species: opts.Species, Workers: opts.Workers})
+	fr, err := b.Read(r, ReadOptions{Name: path, Import: opts.Import, Medium: opts.Medium, Species: opts.Species, Workers: opts.Workers})
 	if err != nil {
 		return nil, fr, err
 	}
@@ -218,4 +270,85 @@ func userCachePath(path string) string {
 		return ""
 	}
 	return filepath.Join(d, "broadline", "lines", cacheName(path))
+}
+
+// progress reports one file's reading to Options.Progress and stops the
+// reading when ctx is done. A nil *progress does nothing (no context to
+// watch and no one to tell).
+type progress struct {
+	ctx  context.Context
+	fn   func(Progress)
+	p    Progress
+	last int64 // Done when last reported
+}
+
+// progressOf returns the progress of file i of n, or nil when there is
+// neither a callback nor a context that can be cancelled.
+func progressOf(ctx context.Context, fn func(Progress), path string, i, n int) *progress {
+	if fn == nil && ctx.Done() == nil {
+		return nil
+	}
+	pr := &progress{ctx: ctx, fn: fn, p: Progress{File: path, Index: i, Files: n}}
+	pr.report()
+	return pr
+}
+
+func (pr *progress) report() {
+	if pr != nil && pr.fn != nil {
+		pr.fn(pr.p)
+		pr.last = pr.p.Done
+	}
+}
+
+func (pr *progress) cached() {
+	if pr != nil {
+		pr.p.Cached = true
+		pr.report()
+	}
+}
+
+func (pr *progress) fileDone() {
+	if pr != nil {
+		pr.p.FileDone = true
+		if pr.p.Total > 0 {
+			pr.p.Done = pr.p.Total
+		}
+		pr.report()
+	}
+}
+
+// reader wraps f so that reading it counts the bytes and fails with
+// ctx.Err() once ctx is done.
+func (pr *progress) reader(f *os.File) io.Reader {
+	pr.p.Cached = false
+	if fi, err := f.Stat(); err == nil && fi.Mode().IsRegular() {
+		pr.p.Total = fi.Size()
+	}
+	return &progressReader{f: f, pr: pr}
+}
+
+// progressReader is the reader of progress.reader. Len tells the parser
+// how much is left, as the *os.File it wraps would (inputSize).
+type progressReader struct {
+	f  *os.File
+	pr *progress
+}
+
+func (r *progressReader) Read(b []byte) (int, error) {
+	if err := r.pr.ctx.Err(); err != nil {
+		return 0, err
+	}
+	n, err := r.f.Read(b)
+	r.pr.p.Done += int64(n)
+	if r.pr.p.Done-r.pr.last >= 1<<20 {
+		r.pr.report()
+	}
+	return n, err
+}
+
+func (r *progressReader) Len() int {
+	if r.pr.p.Total == 0 {
+		return 0
+	}
+	return int(max(r.pr.p.Total-r.pr.p.Done, 0))
 }
