@@ -86,8 +86,13 @@ func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plo
 	return p, nil
 }
 
-// addSegments draws x (Å), y as lines (x in µm), one per segment.
+// addSegments draws x (Å), y as solid lines (x in µm), one per segment.
 func addSegments(p *plot.Plot, x, y []float64, c color.Color, width vg.Length, name string) error {
+	return addStyledSegments(p, x, y, c, width, nil, name)
+}
+
+// addStyledSegments is addSegments with a dash pattern (nil: solid).
+func addStyledSegments(p *plot.Plot, x, y []float64, c color.Color, width vg.Length, dashes []vg.Length, name string) error {
 	for k, seg := range segments(x, y) {
 		l, err := plotter.NewLine(seg)
 		if err != nil {
@@ -95,6 +100,7 @@ func addSegments(p *plot.Plot, x, y []float64, c color.Color, width vg.Length, n
 		}
 		l.Color = c
 		l.Width = width
+		l.Dashes = dashes
 		p.Add(l)
 		if k == 0 {
 			p.Legend.Add(name, l)
@@ -150,4 +156,42 @@ func renderFigure(p *plot.Plot, w, h int) image.Image {
 	c := vgimg.NewWith(vgimg.UseWH(vg.Length(w)*vg.Inch/dpi, vg.Length(h)*vg.Inch/dpi), vgimg.UseDPI(dpi))
 	p.Draw(draw.New(c))
 	return c.Image()
+}
+
+// sweepFigure is the plot of a velocity sweep: χ²/N against v_ph (in c),
+// log-scaled, with the refined minimum marked.
+func sweepFigure(sw *velocitySweep) (*plot.Plot, error) {
+	p := plot.New()
+	p.Title.Text = "χ²/N against the photosphere velocity"
+	p.X.Label.Text = "v_ph (c)"
+	p.Y.Label.Text = "χ²/N"
+	p.Y.Scale = plot.LogScale{}
+	p.Y.Tick.Marker = plot.LogTicks{Prec: -1}
+	p.Add(plotter.NewGrid())
+	pts := make(plotter.XYs, len(sw.Velocity))
+	lo, hi := math.Inf(1), 0.0
+	for i, v := range sw.Velocity {
+		pts[i] = plotter.XY{X: v, Y: sw.Chi2N[i]}
+		lo, hi = math.Min(lo, sw.Chi2N[i]), math.Max(hi, sw.Chi2N[i])
+	}
+	if !(lo > 0) {
+		return nil, fmt.Errorf("figure: χ²/N not positive")
+	}
+	l, s, err := plotter.NewLinePoints(pts)
+	if err != nil {
+		return nil, fmt.Errorf("figure: %w", err)
+	}
+	l.Color, s.Color = palette.Observed, palette.Observed
+	p.Add(l, s)
+	mark, err := plotter.NewLine(plotter.XYs{{X: sw.Best, Y: lo / 1.5}, {X: sw.Best, Y: hi * 1.5}})
+	if err != nil {
+		return nil, fmt.Errorf("figure: %w", err)
+	}
+	mark.Color = palette.Model
+	mark.Width = 1.5
+	p.Add(mark)
+	p.Legend.Add(fmt.Sprintf("minimum near %.3f c", sw.Best), mark)
+	p.Legend.Top = true
+	p.Y.Min, p.Y.Max = lo/1.5, hi*1.5
+	return p, nil
 }

@@ -16,6 +16,7 @@ import (
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
+	"gonum.org/v1/plot"
 
 	"broadline/spectra"
 )
@@ -56,7 +57,9 @@ type workbench struct {
 	preview   *widget.Check
 	status    *widget.Label
 	busy      *widget.ProgressBarInfinite
+	progress  *widget.ProgressBar // of a sweep or a comparison
 	cancelBtn *widget.Button
+	candList  *widget.List
 	figure    *canvas.Image
 	features  *widget.Table
 	featRows  []spectra.Feature
@@ -65,8 +68,18 @@ type workbench struct {
 	cancel context.CancelFunc // of the running computation, if any
 	gen    int                // generation of the latest request
 	// done, if set, is called on the UI goroutine after each computation
-	// finishes (tests wait on it).
-	done func(*overlay, error)
+	// finishes (tests wait on it); jobDone likewise after each sweep or
+	// comparison, with its result or error.
+	done    func(*overlay, error)
+	jobDone func(any, error)
+	// compared is the last comparison shown, for its export.
+	compared *shownComparison
+}
+
+// shownComparison is a comparison figure as the export dialog writes it.
+type shownComparison struct {
+	fig     *plot.Plot
+	caption []string
 }
 
 // newWorkbench builds the window in app a for bench b and session s.
@@ -92,7 +105,7 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 
 	wb.velLabel = widget.NewLabel("")
 	wb.velocity = widget.NewSlider(0.02, sc.OuterVelocity-0.01)
-	wb.velocity.Step = 0.005
+	wb.velocity.Step = 0.001 // 300 km/s
 	wb.velocity.OnChanged = func(v float64) { wb.sess.PhotosphereVelocity = v; wb.showValues() }
 	wb.velocity.OnChangeEnded = func(float64) { wb.recompute() }
 
@@ -101,6 +114,7 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 	wb.temp.Step = 50
 	wb.temp.OnChanged = func(v float64) { wb.sess.Temperature = v; wb.showValues() }
 	wb.temp.OnChangeEnded = func(float64) { wb.recompute() }
+	sweep := widget.NewButton("Sweep velocity…", func() { wb.sweepDialog() })
 
 	wb.fractions = widget.NewMultiLineEntry()
 	wb.fractions.Wrapping = fyne.TextWrapWord
@@ -115,6 +129,28 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 			wb.recompute()
 		}
 	})
+	keep := widget.NewButton("Keep as candidate", func() {
+		if err := wb.keepCandidate(); err != nil {
+			dialog.ShowError(err, wb.win)
+		}
+	})
+	wb.candList = widget.NewList(
+		func() int { return len(wb.sess.Candidates) },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return container.NewBorder(nil, nil, nil,
+				container.NewHBox(widget.NewButton("Show", nil), widget.NewButton("Remove", nil)), l)
+		},
+		func(i widget.ListItemID, o fyne.CanvasObject) {
+			c := o.(*fyne.Container)
+			c.Objects[0].(*widget.Label).SetText(wb.candidateText(i))
+			btns := c.Objects[1].(*fyne.Container).Objects
+			btns[0].(*widget.Button).OnTapped = func() { wb.showCandidate(i) }
+			btns[1].(*widget.Button).OnTapped = func() { wb.removeCandidate(i) }
+		})
+	candScroll := container.NewVScroll(wb.candList)
+	candScroll.SetMinSize(fyne.NewSize(0, 120))
 	reset := widget.NewButton("Reset to the recorded values", func() {
 		wb.sess.resetModel(wb.bench.data)
 		wb.syncControls()
@@ -125,6 +161,8 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 	wb.status.Wrapping = fyne.TextWrapWord
 	wb.busy = widget.NewProgressBarInfinite()
 	wb.busy.Hide()
+	wb.progress = widget.NewProgressBar()
+	wb.progress.Hide()
 	wb.cancelBtn = widget.NewButton("Cancel", func() { wb.stop() })
 	wb.cancelBtn.Hide()
 
@@ -134,11 +172,13 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 
 	controls := container.NewVBox(
 		widget.NewLabelWithStyle("Epoch", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.epoch,
-		widget.NewLabelWithStyle("Photosphere velocity", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.velocity, wb.velLabel,
+		widget.NewLabelWithStyle("Photosphere velocity", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.velocity, wb.velLabel, sweep,
 		widget.NewLabelWithStyle("Photosphere temperature", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.temp, wb.tempLabel,
 		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions, apply,
 		wb.preview, reset,
-		widget.NewSeparator(), wb.busy, wb.cancelBtn, wb.status,
+		widget.NewSeparator(),
+		widget.NewLabelWithStyle("Candidates", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), keep, candScroll,
+		widget.NewSeparator(), wb.busy, wb.progress, wb.cancelBtn, wb.status,
 	)
 	model := widget.NewCard("Ejecta model", "", container.NewVScroll(controls))
 
@@ -175,6 +215,9 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 		fyne.NewMenu("Session",
 			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
+		),
+		fyne.NewMenu("Figure",
+			fyne.NewMenuItem("Compare candidates and export…", func() { wb.startComparison() }),
 		),
 		fyne.NewMenu("Help",
 			fyne.NewMenuItem("About the model…", func() { showModelHelp(wb.win) }),
@@ -231,9 +274,11 @@ func featureCell(f spectra.Feature, col int) string {
 	}
 }
 
-// recompute starts the synthesis for the current session off the UI
-// goroutine, cancelling any computation still running.
-func (wb *workbench) recompute() {
+// begin makes a new computation the workbench's current one, cancelling
+// any other still running, and shows that it runs: the indeterminate bar,
+// or the progress bar when counted is true. It returns the computation's
+// context and generation.
+func (wb *workbench) begin(counted bool, what string) (context.Context, int) {
 	wb.mu.Lock()
 	if wb.cancel != nil {
 		wb.cancel()
@@ -243,12 +288,59 @@ func (wb *workbench) recompute() {
 	wb.gen++
 	gen := wb.gen
 	wb.mu.Unlock()
-
-	sess := *wb.sess // the goroutine works on a copy
-	wb.busy.Show()
-	wb.busy.Start()
+	if counted {
+		wb.busy.Stop()
+		wb.busy.Hide()
+		wb.progress.SetValue(0)
+		wb.progress.Show()
+	} else {
+		wb.progress.Hide()
+		wb.busy.Show()
+		wb.busy.Start()
+	}
 	wb.cancelBtn.Show()
-	wb.status.SetText("computing…")
+	wb.status.SetText(what)
+	return ctx, gen
+}
+
+// end reports whether computation gen is still the current one, and if so
+// clears the signs that it runs.
+func (wb *workbench) end(gen int) bool {
+	wb.mu.Lock()
+	latest := gen == wb.gen
+	if latest {
+		wb.cancel = nil
+	}
+	wb.mu.Unlock()
+	if latest {
+		wb.busy.Stop()
+		wb.busy.Hide()
+		wb.progress.Hide()
+		wb.cancelBtn.Hide()
+	}
+	return latest
+}
+
+// progressFunc returns a progress callback for computation gen that moves
+// the progress bar on the UI goroutine.
+func (wb *workbench) progressFunc(gen int) func(done, total int) {
+	return func(done, total int) {
+		fyne.Do(func() {
+			wb.mu.Lock()
+			latest := gen == wb.gen
+			wb.mu.Unlock()
+			if latest {
+				wb.progress.SetValue(float64(done) / float64(total))
+			}
+		})
+	}
+}
+
+// recompute starts the synthesis for the current session off the UI
+// goroutine, cancelling any computation still running.
+func (wb *workbench) recompute() {
+	ctx, gen := wb.begin(false, "computing…")
+	sess := *wb.sess // the goroutine works on a copy
 	go func() {
 		ov, err := wb.bench.compute(ctx, &sess)
 		var img image.Image
@@ -272,18 +364,9 @@ func (wb *workbench) draw(s *Session, ov *overlay) (image.Image, error) {
 
 // finish shows a computation's result, unless a newer one has been asked for.
 func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, err error) {
-	wb.mu.Lock()
-	latest := gen == wb.gen
-	if latest {
-		wb.cancel = nil
-	}
-	wb.mu.Unlock()
-	if !latest {
+	if !wb.end(gen) {
 		return
 	}
-	wb.busy.Stop()
-	wb.busy.Hide()
-	wb.cancelBtn.Hide()
 	switch {
 	case errors.Is(err, context.Canceled):
 		wb.status.SetText("cancelled")
@@ -359,6 +442,7 @@ func (wb *workbench) openSession(path string) error {
 	*wb.sess = *s
 	wb.syncControls()
 	wb.updateFeatures()
+	wb.candList.Refresh()
 	wb.recompute()
 	return nil
 }

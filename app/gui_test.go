@@ -1,7 +1,10 @@
 package main
 
 import (
+	"math"
+	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 	"time"
@@ -83,7 +86,7 @@ func TestWorkbenchOnDemo(t *testing.T) {
 	if got := strings.Join(cards, ","); !strings.Contains(got, "Ejecta model") || !strings.Contains(got, "Spectrum") || !strings.Contains(got, "Features") {
 		t.Errorf("panels %q", got)
 	}
-	if m := wb.win.MainMenu(); m == nil || len(m.Items) != 2 || m.Items[1].Label != "Help" {
+	if m := wb.win.MainMenu(); m == nil || len(m.Items) != 3 || m.Items[1].Label != "Figure" || m.Items[2].Label != "Help" {
 		t.Errorf("menus wrong: %+v", m)
 	}
 
@@ -131,7 +134,7 @@ func TestWorkbenchOnDemo(t *testing.T) {
 	if err := wb.openSession(path); err != nil {
 		t.Fatal(err)
 	}
-	if *sess != saved || wb.epoch.SelectedIndex() != saved.Epoch || wb.velocity.Value != saved.PhotosphereVelocity {
+	if !reflect.DeepEqual(*sess, saved) || wb.epoch.SelectedIndex() != saved.Epoch || wb.velocity.Value != saved.PhotosphereVelocity {
 		t.Errorf("after opening: session %+v, epoch control %d, velocity control %g; want %+v", sess, wb.epoch.SelectedIndex(), wb.velocity.Value, saved)
 	}
 	// A session for another dataset is refused and changes nothing.
@@ -140,10 +143,98 @@ func TestWorkbenchOnDemo(t *testing.T) {
 	if err := bad.Save(path); err != nil {
 		t.Fatal(err)
 	}
-	if err := wb.openSession(path); err == nil || *sess != saved {
+	if err := wb.openSession(path); err == nil || !reflect.DeepEqual(*sess, saved) {
 		t.Errorf("foreign session accepted (err %v), session now %+v", err, sess)
 	}
 	waitDone(t, wb) // let the recomputation started by openSession finish
+}
+
+// waitJob runs start and waits for the sweep or comparison it begins.
+func waitJob(t *testing.T, wb *workbench, start func()) any {
+	t.Helper()
+	type res struct {
+		v   any
+		err error
+	}
+	ch := make(chan res, 1)
+	wb.jobDone = func(v any, err error) { ch <- res{v, err} }
+	start()
+	select {
+	case r := <-ch:
+		if r.err != nil {
+			t.Fatal(r.err)
+		}
+		return r.v
+	case <-time.After(2 * time.Minute):
+		t.Fatal("job did not finish")
+	}
+	return nil
+}
+
+// TestWorkbenchTools drives the sweep, the candidates and the comparison
+// export through the workbench: a sweep from a wrong velocity finds the
+// recorded one and "use" puts it in the session and the slider; two kept
+// candidates appear in the list and are saved with the session; the
+// comparison figure is exported as a PNG; removing a candidate updates the
+// list.
+func TestWorkbenchTools(t *testing.T) {
+	a := test.NewTempApp(t)
+	b := demoBench(t)
+	sess := newSession("demo", b.data)
+	truth := sess.PhotosphereVelocity
+	wb := newWorkbench(a, b, sess)
+	defer wb.win.Close()
+
+	sess.PhotosphereVelocity = truth + 0.05
+	wb.syncControls()
+	sw := waitJob(t, wb, func() { wb.startSweep(truth-0.06, truth+0.06, 13) }).(*velocitySweep)
+	if math.Abs(sw.Best-truth) > 0.01 || !strings.Contains(wb.status.Text, "least") {
+		t.Errorf("sweep best %.4f c (recorded %.4f), status %q", sw.Best, truth, wb.status.Text)
+	}
+	if sess.PhotosphereVelocity != truth+0.05 {
+		t.Errorf("the sweep changed the session's velocity before it was used")
+	}
+	wb.done = func(*overlay, error) {}
+	wb.useVelocity(sw.Best)
+	if math.Abs(sess.PhotosphereVelocity-sw.Best) > 0.0005 || wb.velocity.Value != sess.PhotosphereVelocity {
+		t.Errorf("use: session %g, slider %g, want %g", sess.PhotosphereVelocity, wb.velocity.Value, sw.Best)
+	}
+	waitDone(t, wb)
+
+	if err := wb.keepCandidate(); err != nil {
+		t.Fatal(err)
+	}
+	wb.fractions.SetText(noSr)
+	sess.MassFractions = noSr
+	if err := wb.keepCandidate(); err != nil {
+		t.Fatal(err)
+	}
+	if wb.candList.Length() != 2 || !strings.HasPrefix(wb.candidateText(1), "B · 1.5 d") {
+		t.Errorf("list of %d, second %q", wb.candList.Length(), wb.candidateText(1))
+	}
+	shown := waitJob(t, wb, func() { wb.startComparison() }).(*shownComparison)
+	if len(shown.caption) != 4 {
+		t.Errorf("caption %q", shown.caption)
+	}
+	out := filepath.Join(t.TempDir(), "fig.png")
+	if err := wb.exportComparison(out); err != nil {
+		t.Fatal(err)
+	}
+	if fi, err := os.Stat(out); err != nil || fi.Size() < 10000 {
+		t.Errorf("exported figure: %v", err)
+	}
+	path := filepath.Join(t.TempDir(), "s.json")
+	if err := sess.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	back, err := loadSession(path, "demo", b.data)
+	if err != nil || len(back.Candidates) != 2 || back.Candidates[1].MassFractions != noSr {
+		t.Errorf("saved candidates: %+v, %v", back, err)
+	}
+	wb.removeCandidate(0)
+	if wb.candList.Length() != 1 || sess.Candidates[0].Label != "B" {
+		t.Errorf("after removing A: %d candidates, first %q", wb.candList.Length(), sess.Candidates[0].Label)
+	}
 }
 
 // TestModelCautions checks that the help text names every approximation the

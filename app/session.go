@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"broadline/opacity"
 )
@@ -31,6 +32,9 @@ type Session struct {
 	MassFractions string `json:"mass_fractions"`
 	// Preview selects the absorption-only approximation.
 	Preview bool `json:"preview"`
+	// Candidates are the models kept for comparison (at most
+	// maxCandidates), in the order kept.
+	Candidates []Candidate `json:"candidates,omitempty"`
 }
 
 // newSession returns a session on epoch 0 of d with the model parameters set
@@ -65,38 +69,60 @@ func (s *Session) Validate(d *dataset) error {
 	if _, err := opacity.ParseComposition(s.MassFractions); err != nil {
 		return fmt.Errorf("mass fractions: %w", err)
 	}
+	if len(s.Candidates) > maxCandidates {
+		return fmt.Errorf("%d candidates (at most %d are kept)", len(s.Candidates), maxCandidates)
+	}
+	seen := map[string]bool{}
+	for _, c := range s.Candidates {
+		switch {
+		case strings.TrimSpace(c.Label) == "" || len(c.Label) > 40:
+			return fmt.Errorf("candidate label %q: want 1–40 characters", c.Label)
+		case seen[c.Label]:
+			return fmt.Errorf("two candidates are labelled %q", c.Label)
+		}
+		seen[c.Label] = true
+		t := c.session(s)
+		if err := t.Validate(d); err != nil {
+			return fmt.Errorf("candidate %s: %w", c.Label, err)
+		}
+	}
 	return nil
 }
 
-// Save writes the session as JSON to path atomically: to a temporary file in
-// the same directory, synced, then renamed over path. A failure leaves any
-// earlier file at path untouched.
+// Save writes the session as JSON to path atomically (writeFileAtomic): a
+// failure leaves any earlier file at path untouched.
 func (s *Session) Save(path string) error {
 	js, err := json.MarshalIndent(s, "", "  ")
 	if err != nil {
 		return fmt.Errorf("save session: %w", err)
 	}
-	js = append(js, '\n')
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*.tmp")
-	if err != nil {
-		return fmt.Errorf("save session: %w", err)
-	}
-	defer os.Remove(tmp.Name()) // no-op after a successful rename
-	if _, err := tmp.Write(js); err != nil {
-		tmp.Close()
-		return fmt.Errorf("save session: %w", err)
-	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return fmt.Errorf("save session: %w", err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("save session: %w", err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
+	if err := writeFileAtomic(path, append(js, '\n')); err != nil {
 		return fmt.Errorf("save session: %w", err)
 	}
 	return nil
+}
+
+// writeFileAtomic writes data to path through a temporary file in the same
+// directory, synced, then renamed over path, so that a reader sees either
+// the old file or the whole new one and a failure leaves the old one.
+func writeFileAtomic(path string, data []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*.tmp")
+	if err != nil {
+		return err
+	}
+	defer os.Remove(tmp.Name()) // no-op after a successful rename
+	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		return err
+	}
+	if err := tmp.Sync(); err != nil {
+		tmp.Close()
+		return err
+	}
+	if err := tmp.Close(); err != nil {
+		return err
+	}
+	return os.Rename(tmp.Name(), path)
 }
 
 // readSession decodes a session; unknown fields are an error so a misspelt

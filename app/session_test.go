@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 )
@@ -39,7 +40,7 @@ func TestSessionSaveAndRead(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if *got != *s {
+	if !reflect.DeepEqual(*got, *s) {
 		t.Errorf("round trip: got %+v, want %+v", got, s)
 	}
 	if ents, _ := os.ReadDir(dir); len(ents) != 1 {

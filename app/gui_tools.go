@@ -1,0 +1,248 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"image"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/widget"
+	"gonum.org/v1/plot/vg"
+)
+
+// The workbench's tools beyond the live model: the velocity sweep, the kept
+// candidates and the comparison figure with its export. As in gui.go, the
+// numbers come from the bench (sweep.go, compare.go).
+
+// sweepDialog asks for the range and number of velocities of a sweep.
+func (wb *workbench) sweepDialog() {
+	outer := wb.bench.data.Scenario.OuterVelocity
+	v := wb.sess.PhotosphereVelocity
+	from := widget.NewEntry()
+	from.SetText(fmt.Sprintf("%.3gc", max(0.02, v-0.08)))
+	to := widget.NewEntry()
+	to.SetText(fmt.Sprintf("%.3gc", min(outer-0.01, v+0.08)))
+	steps := widget.NewEntry()
+	steps.SetText("17")
+	dialog.ShowForm("Sweep the photosphere velocity", "Sweep", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("From", from),
+			widget.NewFormItem("To", to),
+			widget.NewFormItem("Velocities", steps),
+			widget.NewFormItem("", widget.NewLabel("Temperature and composition stay as set; each velocity is a full synthesis\n(or the preview, if it is switched on). Velocities as 0.2c or 60000km/s.")),
+		},
+		func(ok bool) {
+			if !ok {
+				return
+			}
+			lo, err1 := parseVelocity(from.Text)
+			hi, err2 := parseVelocity(to.Text)
+			n, err3 := strconv.Atoi(strings.TrimSpace(steps.Text))
+			if err := errors.Join(err1, err2, err3); err != nil {
+				dialog.ShowError(err, wb.win)
+				return
+			}
+			wb.startSweep(lo, hi, n)
+		}, wb.win)
+}
+
+// startSweep runs a velocity sweep off the UI goroutine with a progress
+// bar; Cancel (or any new computation) stops it.
+func (wb *workbench) startSweep(lo, hi float64, steps int) {
+	ctx, gen := wb.begin(true, fmt.Sprintf("sweeping %d velocities from %.3f to %.3f c…", steps, lo, hi))
+	sess := *wb.sess
+	go func() {
+		sw, err := wb.bench.sweepVelocity(ctx, &sess, lo, hi, steps, wb.progressFunc(gen))
+		var img image.Image
+		if err == nil {
+			p, ferr := sweepFigure(sw)
+			if ferr != nil {
+				err = ferr
+			} else {
+				img = renderFigure(p, 640, 380)
+			}
+		}
+		fyne.Do(func() { wb.finishSweep(gen, sw, img, err) })
+	}()
+}
+
+// finishSweep shows a sweep's curve and offers its best velocity.
+func (wb *workbench) finishSweep(gen int, sw *velocitySweep, img image.Image, err error) {
+	if !wb.end(gen) {
+		return
+	}
+	defer func() {
+		if wb.jobDone != nil {
+			wb.jobDone(sw, err)
+		}
+	}()
+	if err != nil {
+		wb.showJobError(err)
+		return
+	}
+	msg := fmt.Sprintf("velocity sweep: χ²/N is least (%.2f) near v_ph = %.3f c", sw.BestChi2N, sw.Best)
+	if sw.AtEdge {
+		msg += " — at the end of the range: the minimum may lie outside it; widen the range"
+	}
+	if sw.Preview {
+		msg += " (absorption-only preview)"
+	}
+	wb.status.SetText(msg)
+	if img == nil {
+		return
+	}
+	fig := canvas.NewImageFromImage(img)
+	fig.FillMode = canvas.ImageFillContain
+	fig.SetMinSize(fyne.NewSize(640, 380))
+	use := widget.NewButton(fmt.Sprintf("Use v_ph = %.3f c", sw.Best), nil)
+	d := dialog.NewCustom("Velocity sweep", "Close", container.NewBorder(widget.NewLabel(msg), use, nil, nil, fig), wb.win)
+	use.OnTapped = func() {
+		d.Hide()
+		wb.useVelocity(sw.Best)
+	}
+	d.Show()
+}
+
+// useVelocity sets the photosphere velocity, to the slider's step of
+// 0.001 c, and recomputes.
+func (wb *workbench) useVelocity(v float64) {
+	v = math.Round(v/wb.velocity.Step) * wb.velocity.Step
+	wb.sess.PhotosphereVelocity = min(max(v, wb.velocity.Min), wb.velocity.Max)
+	wb.syncControls()
+	wb.recompute()
+}
+
+// showJobError reports a failed or cancelled sweep or comparison.
+func (wb *workbench) showJobError(err error) {
+	if errors.Is(err, context.Canceled) {
+		wb.status.SetText("cancelled")
+		return
+	}
+	wb.status.SetText("error: " + err.Error())
+}
+
+// keepCandidate keeps the current model as a candidate with the next free
+// label.
+func (wb *workbench) keepCandidate() error {
+	if len(wb.sess.Candidates) >= maxCandidates {
+		return fmt.Errorf("%d candidates are kept already (the most a figure can tell apart): remove one first", maxCandidates)
+	}
+	c := candidateOf(wb.sess, nextLabel(wb.sess.Candidates))
+	wb.sess.Candidates = append(wb.sess.Candidates, c)
+	wb.candList.Refresh()
+	wb.status.SetText(fmt.Sprintf("kept the current model as candidate %s", c.Label))
+	return nil
+}
+
+// candidateText is a candidate's line in the list.
+func (wb *workbench) candidateText(i int) string {
+	if i < 0 || i >= len(wb.sess.Candidates) {
+		return ""
+	}
+	c := wb.sess.Candidates[i]
+	return fmt.Sprintf("%s · %g d · %.3f c · %.0f K · %s", c.Label, wb.bench.data.Scenario.Epochs[c.Epoch].Days,
+		c.PhotosphereVelocity, c.Temperature, compositionText(c.MassFractions))
+}
+
+// showCandidate makes candidate i the current model.
+func (wb *workbench) showCandidate(i int) {
+	if i < 0 || i >= len(wb.sess.Candidates) {
+		return
+	}
+	c := wb.sess.Candidates[i]
+	wb.sess.Epoch, wb.sess.PhotosphereVelocity, wb.sess.Temperature, wb.sess.MassFractions, wb.sess.Preview =
+		c.Epoch, c.PhotosphereVelocity, c.Temperature, c.MassFractions, c.Preview
+	wb.syncControls()
+	wb.updateFeatures()
+	wb.recompute()
+}
+
+// removeCandidate forgets candidate i.
+func (wb *workbench) removeCandidate(i int) {
+	if i < 0 || i >= len(wb.sess.Candidates) {
+		return
+	}
+	wb.sess.Candidates = append(wb.sess.Candidates[:i:i], wb.sess.Candidates[i+1:]...)
+	wb.candList.Refresh()
+}
+
+// startComparison computes the candidates of the shown epoch off the UI
+// goroutine and shows their figure for export.
+func (wb *workbench) startComparison() {
+	ctx, gen := wb.begin(true, "computing the candidates of this epoch…")
+	sess := *wb.sess
+	sess.Candidates = append([]Candidate(nil), wb.sess.Candidates...)
+	go func() {
+		var shown *shownComparison
+		var img image.Image
+		cmp, err := wb.bench.compareCandidates(ctx, &sess, sess.Epoch, wb.progressFunc(gen))
+		if err == nil {
+			shown = &shownComparison{}
+			shown.fig, shown.caption, err = wb.bench.comparisonFigure(cmp)
+		}
+		if err == nil {
+			img = renderCaptioned(shown.fig, shown.caption, 1000, 620)
+		}
+		fyne.Do(func() { wb.finishComparison(gen, shown, img, err) })
+	}()
+}
+
+// finishComparison shows the comparison figure with the export controls.
+func (wb *workbench) finishComparison(gen int, shown *shownComparison, img image.Image, err error) {
+	if !wb.end(gen) {
+		return
+	}
+	defer func() {
+		if wb.jobDone != nil {
+			wb.jobDone(shown, err)
+		}
+	}()
+	if err != nil {
+		wb.showJobError(err)
+		return
+	}
+	wb.compared = shown
+	wb.status.SetText("comparison ready: export it from the dialog")
+	fig := canvas.NewImageFromImage(img)
+	fig.FillMode = canvas.ImageFillContain
+	fig.SetMinSize(fyne.NewSize(900, 560))
+	path := widget.NewEntry()
+	path.SetText(defaultFigurePath())
+	export := widget.NewButton("Export", func() {
+		if err := wb.exportComparison(path.Text); err != nil {
+			dialog.ShowError(err, wb.win)
+		}
+	})
+	bar := container.NewBorder(nil, nil, widget.NewLabel("File (.png, .svg or .pdf)"), export, path)
+	dialog.ShowCustom("Candidate compositions", "Close", container.NewBorder(nil, bar, nil, nil, fig), wb.win)
+}
+
+// exportComparison writes the last comparison figure to path (10 × 6 in).
+func (wb *workbench) exportComparison(path string) error {
+	if wb.compared == nil {
+		return fmt.Errorf("no comparison to export: Figure ▸ Compare candidates first")
+	}
+	if err := exportFigure(wb.compared.fig, wb.compared.caption, path, 10*vg.Inch, 6*vg.Inch); err != nil {
+		return err
+	}
+	wb.status.SetText("figure written to " + path)
+	return nil
+}
+
+// defaultFigurePath is comparison.png in the working directory.
+func defaultFigurePath() string {
+	dir, err := os.Getwd()
+	if err != nil {
+		return "comparison.png"
+	}
+	return filepath.Join(dir, "comparison.png")
+}
