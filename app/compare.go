@@ -202,18 +202,46 @@ func exportFigure(p *plot.Plot, caption []string, path string, w, h vg.Length) e
 	return nil
 }
 
-// drawCaptioned draws p on cv with the caption lines under it.
+// drawCaptioned draws p on cv with the caption lines under it, each wrapped
+// at spaces to the canvas's width.
 func drawCaptioned(cv vg.CanvasSizer, p *plot.Plot, caption []string) {
 	dc := draw.New(cv)
 	sty := p.Legend.TextStyle
 	sty.Font.Size = vg.Points(8)
 	sty.Color = color.Black
-	line := sty.FontExtents().Height * 1.25
-	capH := line*vg.Length(len(caption)) + vg.Points(6)
-	p.Draw(draw.Crop(dc, 0, 0, capH, 0))
-	for i, txt := range caption {
-		dc.FillText(sty, vg.Point{X: dc.Min.X + vg.Points(8), Y: dc.Min.Y + capH - line*vg.Length(i+1)}, txt)
+	margin := vg.Points(8)
+	var lines []string
+	for _, c := range caption {
+		lines = append(lines, wrapText(c, dc.Max.X-dc.Min.X-2*margin, sty.Width)...)
 	}
+	line := sty.FontExtents().Height * 1.25
+	capH := line*vg.Length(len(lines)) + vg.Points(6)
+	p.Draw(draw.Crop(dc, 0, 0, capH, 0))
+	for i, txt := range lines {
+		dc.FillText(sty, vg.Point{X: dc.Min.X + margin, Y: dc.Min.Y + capH - line*vg.Length(i+1)}, txt)
+	}
+}
+
+// wrapText splits s at spaces into lines no wider than w as measured by
+// width (a word wider than w gets a line of its own).
+func wrapText(s string, w vg.Length, width func(string) vg.Length) []string {
+	var out []string
+	cur := ""
+	for _, word := range strings.Fields(s) {
+		next := word
+		if cur != "" {
+			next = cur + " " + word
+		}
+		if cur != "" && width(next) > w {
+			out = append(out, cur)
+			next = word
+		}
+		cur = next
+	}
+	if cur != "" {
+		out = append(out, cur)
+	}
+	return out
 }
 
 // renderCaptioned draws p with its caption into an image of w×h pixels at

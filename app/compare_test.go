@@ -145,3 +145,14 @@ func TestCandidatesValidate(t *testing.T) {
 		t.Errorf("%d candidates: accepted", len(s.Candidates))
 	}
 }
+
+// TestWrapText: with each character one unit wide, lines break at spaces
+// before the width is passed, and nothing is lost or reordered.
+func TestWrapText(t *testing.T) {
+	width := func(s string) vg.Length { return vg.Length(len(s)) }
+	got := wrapText("Sr 0.03, Y 0.002, Zr 0.008, averyveryverylongword x", 12, width)
+	want := []string{"Sr 0.03, Y", "0.002, Zr", "0.008,", "averyveryverylongword", "x"}
+	if strings.Join(got, "|") != strings.Join(want, "|") {
+		t.Errorf("got %q, want %q", got, want)
+	}
+}

@@ -32,6 +32,7 @@ var palette = struct {
 func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plot, error) {
 	p := plot.New()
 	p.Title.Text = title
+	p.Title.Padding = vg.Points(4)
 	p.X.Label.Text = "vacuum wavelength (µm)"
 	p.Y.Label.Text = "flux (erg/s/cm²/Å)"
 	p.Add(plotter.NewGrid())

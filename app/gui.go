@@ -178,9 +178,11 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 		wb.preview, reset,
 		widget.NewSeparator(),
 		widget.NewLabelWithStyle("Candidates", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), keep, candScroll,
-		widget.NewSeparator(), wb.busy, wb.progress, wb.cancelBtn, wb.status,
 	)
-	model := widget.NewCard("Ejecta model", "", container.NewVScroll(controls))
+	// The state of the computation stays in view below the scrolling
+	// controls.
+	state := container.NewVBox(widget.NewSeparator(), wb.busy, wb.progress, wb.cancelBtn, wb.status)
+	model := widget.NewCard("Ejecta model", "", container.NewBorder(nil, state, nil, nil, container.NewVScroll(controls)))
 
 	wb.figure = canvas.NewImageFromImage(image.NewRGBA(image.Rect(0, 0, 1, 1)))
 	wb.figure.FillMode = canvas.ImageFillContain

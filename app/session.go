@@ -104,13 +104,22 @@ func (s *Session) Save(path string) error {
 
 // writeFileAtomic writes data to path through a temporary file in the same
 // directory, synced, then renamed over path, so that a reader sees either
-// the old file or the whole new one and a failure leaves the old one.
+// the old file or the whole new one and a failure leaves the old one. The
+// file keeps the permissions of the one it replaces, or gets 0644.
 func writeFileAtomic(path string, data []byte) error {
+	mode := os.FileMode(0o644)
+	if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
+		mode = fi.Mode().Perm()
+	}
 	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*.tmp")
 	if err != nil {
 		return err
 	}
 	defer os.Remove(tmp.Name()) // no-op after a successful rename
+	if err := tmp.Chmod(mode); err != nil {
+		tmp.Close()
+		return err
+	}
 	if _, err := tmp.Write(data); err != nil {
 		tmp.Close()
 		return err

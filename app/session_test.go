@@ -46,6 +46,20 @@ func TestSessionSaveAndRead(t *testing.T) {
 	if ents, _ := os.ReadDir(dir); len(ents) != 1 {
 		t.Errorf("temporary files left behind: %v", ents)
 	}
+	// A new file is readable by others (0644), as files written by hand
+	// are; a replaced file keeps its permissions.
+	if fi, err := os.Stat(path); err != nil || fi.Mode().Perm() != 0o644 {
+		t.Errorf("new session file mode %v (%v), want 0644", fi.Mode().Perm(), err)
+	}
+	if err := os.Chmod(path, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if err := s.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	if fi, err := os.Stat(path); err != nil || fi.Mode().Perm() != 0o600 {
+		t.Errorf("replaced session file mode %v (%v), want the old 0600", fi.Mode().Perm(), err)
+	}
 }
 
 // TestSessionSaveIsAtomic: a save that cannot complete leaves the earlier
