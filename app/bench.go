@@ -79,8 +79,19 @@ func (b *bench) compute(ctx context.Context, s *Session) (*overlay, error) {
 		return nil, fmt.Errorf("synthesis: %w", err)
 	}
 	res.Flux = res.AtDistance(sc.DistanceMpc * spectra.Megaparsec)
+	ov, err := compareObserved(b.data.Observed[s.Epoch], res, sc.Instrument.ResolvingPower)
+	if err != nil {
+		return nil, err
+	}
+	ov.Warnings = append(slices.Clone(b.loadWarnings), res.Warnings...)
+	return ov, nil
+}
 
-	obs := b.data.Observed[s.Epoch]
+// compareObserved puts the synthetic spectrum res (flux already at the
+// observer) on the observed spectrum's wavelengths inside the model's range,
+// smoothed to resolving power R, and sums χ² over the unmasked samples that
+// have an uncertainty.
+func compareObserved(obs *spectra.Spectrum, res *synth.Result, R float64) (*overlay, error) {
 	lo, hi := res.Wavelength[0], res.Wavelength[len(res.Wavelength)-1]
 	var idx []int
 	var grid []float64
@@ -93,11 +104,11 @@ func (b *bench) compute(ctx context.Context, s *Session) (*overlay, error) {
 	if len(grid) == 0 {
 		return nil, fmt.Errorf("the observed spectrum lies outside the model's range")
 	}
-	flux, _, err := res.Observe(sc.Instrument.ResolvingPower, grid)
+	flux, _, err := res.Observe(R, grid)
 	if err != nil {
 		return nil, err
 	}
-	ov := &overlay{Wavelength: grid, Flux: flux, Preview: res.Preview, Warnings: append(slices.Clone(b.loadWarnings), res.Warnings...)}
+	ov := &overlay{Wavelength: grid, Flux: flux, Preview: res.Preview}
 	for k, i := range idx {
 		if obs.Masked(i) || obs.Uncertainty == nil || !(obs.Uncertainty[i] > 0) {
 			continue

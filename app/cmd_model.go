@@ -8,6 +8,7 @@ import (
 	"math"
 	"os"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -123,54 +124,83 @@ func parseVelocity(s string) (float64, error) {
 	return b, nil
 }
 
-func runModel(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
-	var lines, levels, without listFlag
-	fs.Var(&lines, "lines", "line-list `FILE` (repeatable, or comma-separated)")
-	fs.Var(&levels, "levels", "levels `FILE` for partition functions (optional, repeatable)")
-	fracs := fs.String("mass-fractions", "", "element mass fractions, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\" (normalised; required)")
-	var daysF, tempF, massF numberFlag
-	fs.Var(&daysF, "days", "time since explosion in `days` (required)")
-	vph, vout, vin := &velocityFlag{}, &velocityFlag{}, &velocityFlag{}
-	fs.Var(vph, "photosphere-velocity", "photosphere `velocity`, e.g. 0.2c or 60000km/s (required)")
-	fs.Var(vout, "outer-velocity", "outer edge of the ejecta, a `velocity` such as 0.35c (required)")
-	fs.Var(vin, "inner-velocity", "inner edge of the density law, a `velocity` (default 0; needed for --density-index ≥ 3)")
-	fs.Var(&tempF, "temperature", "photosphere blackbody temperature in `K` (required)")
-	fs.Var(&massF, "ejecta-mass", "total ejecta mass in solar `masses` (required)")
-	index := fs.Float64("density-index", 0, "n in ρ ∝ v^−n (0: uniform)")
-	from := fs.Float64("from-um", 0.4, "start of the wavelength range, µm (vacuum)")
-	to := fs.Float64("to-um", 2.5, "end of the wavelength range, µm (vacuum)")
-	rp := fs.Float64("resolving-power", 0, "smooth to resolving power R (0: the model grid's own resolution)")
-	fs.Var(&without, "without", "remove this element's lines (knock-out; repeatable or comma-separated)")
-	diluted := fs.Bool("diluted", false, "use the diluted temperature T(r) = W(r)^(1/4) T_ph instead of a uniform one")
-	preview := fs.Bool("preview", false, "absorption-only approximation (fast preview, no scattered emission)")
-	doppler := fs.String("doppler", "first-order", "Doppler formula: first-order or relativistic")
-	dist := fs.Float64("distance-mpc", 0, "distance in Mpc: flux at the observer (default: flux at the photosphere)")
-	pos, err := fs.parse(args)
-	if err != nil {
-		return err
-	}
-	if len(pos) > 0 {
-		return usagef("unexpected argument %q (line lists go after --lines)", pos[0])
-	}
-	days, temp, mass := daysF.value(), tempF.value(), massF.value()
-	if !vph.set {
-		vph.beta = math.NaN()
-	}
-	if !vout.set {
-		vout.beta = math.NaN()
-	}
+// modelFlags are the flags that define a synthesis; the model and sweep
+// commands share them.
+type modelFlags struct {
+	lines, levels, without    listFlag
+	fracs                     *string
+	daysF, tempF, massF       numberFlag
+	vph, vout, vin            velocityFlag
+	index, from, to, rp, dist *float64
+	diluted, preview          *bool
+	doppler                   *string
+}
 
-	// Check every value before reading anything.
-	if len(lines) == 0 {
-		return usagef("--lines: at least one line-list file is needed")
+// addModelFlags declares the model flags on fs. The photosphere velocity is
+// declared only when withVph is true (the sweep sets it itself).
+func addModelFlags(fs *flagSet, withVph bool) *modelFlags {
+	f := &modelFlags{}
+	fs.Var(&f.lines, "lines", "line-list `FILE` (repeatable, or comma-separated)")
+	fs.Var(&f.levels, "levels", "levels `FILE` for partition functions (optional, repeatable)")
+	f.fracs = fs.String("mass-fractions", "", "element mass fractions, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\" (normalised; required)")
+	fs.Var(&f.daysF, "days", "time since explosion in `days` (required)")
+	if withVph {
+		fs.Var(&f.vph, "photosphere-velocity", "photosphere `velocity`, e.g. 0.2c or 60000km/s (required)")
 	}
-	if *fracs == "" {
-		return usagef("--mass-fractions is required, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\"")
+	fs.Var(&f.vout, "outer-velocity", "outer edge of the ejecta, a `velocity` such as 0.35c (required)")
+	fs.Var(&f.vin, "inner-velocity", "inner edge of the density law, a `velocity` (default 0; needed for --density-index ≥ 3)")
+	fs.Var(&f.tempF, "temperature", "photosphere blackbody temperature in `K` (required)")
+	fs.Var(&f.massF, "ejecta-mass", "total ejecta mass in solar `masses` (required)")
+	f.index = fs.Float64("density-index", 0, "n in ρ ∝ v^−n (0: uniform)")
+	f.from = fs.Float64("from-um", 0.4, "start of the wavelength range, µm (vacuum)")
+	f.to = fs.Float64("to-um", 2.5, "end of the wavelength range, µm (vacuum)")
+	f.rp = fs.Float64("resolving-power", 0, "smooth to resolving power R (0: the model grid's own resolution)")
+	fs.Var(&f.without, "without", "remove this element's lines (knock-out; repeatable or comma-separated)")
+	f.diluted = fs.Bool("diluted", false, "use the diluted temperature T(r) = W(r)^(1/4) T_ph instead of a uniform one")
+	f.preview = fs.Bool("preview", false, "absorption-only approximation (fast preview, no scattered emission)")
+	f.doppler = fs.String("doppler", "first-order", "Doppler formula: first-order or relativistic")
+	f.dist = fs.Float64("distance-mpc", 0, "distance in Mpc: flux at the observer (default: flux at the photosphere)")
+	return f
+}
+
+// modelSetup is what the model flags describe, checked and read.
+type modelSetup struct {
+	model    *synth.Model
+	comp     opacity.Composition
+	ejecta   synth.Ejecta
+	settings synth.Settings
+	store    *linelists.Store
+	report   linelists.Report
+	skipped  int
+	filter   linelists.Filter
+}
+
+// setup checks every value (a *usageError naming the flag when one is bad)
+// before it reads the line lists and builds the model. vph is the
+// photosphere velocity to check the ejecta with when the command sets it
+// itself (NaN: take --photosphere-velocity).
+func (f *modelFlags) setup(vph float64) (*modelSetup, error) {
+	days, temp, mass := f.daysF.value(), f.tempF.value(), f.massF.value()
+	vout := f.vout.beta
+	if !f.vout.set {
+		vout = math.NaN()
 	}
-	comp, err := opacity.ParseComposition(*fracs)
+	withVph := math.IsNaN(vph)
+	if withVph {
+		vph = f.vph.beta
+		if !f.vph.set {
+			vph = math.NaN()
+		}
+	}
+	if len(f.lines) == 0 {
+		return nil, usagef("--lines: at least one line-list file is needed")
+	}
+	if *f.fracs == "" {
+		return nil, usagef("--mass-fractions is required, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\"")
+	}
+	comp, err := opacity.ParseComposition(*f.fracs)
 	if err != nil {
-		return usagef("--mass-fractions: %v", err)
+		return nil, usagef("--mass-fractions: %v", err)
 	}
 	need := func(name string, v float64, what string) error {
 		if math.IsNaN(v) {
@@ -181,98 +211,130 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 		}
 		return nil
 	}
-	for _, chk := range []struct {
+	type check struct {
 		name, what string
 		v          float64
-	}{
-		{"days", "time in days", days},
-		{"photosphere-velocity", "velocity, e.g. 0.2c", vph.beta},
-		{"outer-velocity", "velocity, e.g. 0.35c", vout.beta},
-		{"temperature", "temperature in K", temp},
-		{"ejecta-mass", "mass in solar masses", mass},
-	} {
+	}
+	checks := []check{{"days", "time in days", days}}
+	if withVph {
+		checks = append(checks, check{"photosphere-velocity", "velocity, e.g. 0.2c", vph})
+	}
+	checks = append(checks,
+		check{"outer-velocity", "velocity, e.g. 0.35c", vout},
+		check{"temperature", "temperature in K", temp},
+		check{"ejecta-mass", "mass in solar masses", mass})
+	for _, chk := range checks {
 		if err := need(chk.name, chk.v, chk.what); err != nil {
-			return err
+			return nil, err
 		}
 	}
-	if !(*from > 0) || !(*to > *from) || math.IsInf(*to, 0) {
-		return usagef("--from-um %g --to-um %g: want 0 < from < to", *from, *to)
+	from, to := *f.from, *f.to
+	if !(from > 0) || !(to > from) || math.IsInf(to, 0) {
+		return nil, usagef("--from-um %g --to-um %g: want 0 < from < to", from, to)
 	}
-	if (*to)/(*from) > 1e3 {
-		return usagef("--from-um %g --to-um %g: range wider than a factor 1000", *from, *to)
+	if to/from > 1e3 {
+		return nil, usagef("--from-um %g --to-um %g: range wider than a factor 1000", from, to)
 	}
-	if !(*rp >= 0) || math.IsInf(*rp, 0) {
-		return usagef("--resolving-power %g: want ≥ 0 (0: no smoothing)", *rp)
+	if !(*f.rp >= 0) || math.IsInf(*f.rp, 0) {
+		return nil, usagef("--resolving-power %g: want ≥ 0 (0: no smoothing)", *f.rp)
 	}
-	if !(*dist >= 0) || math.IsInf(*dist, 0) {
-		return usagef("--distance-mpc %g: want > 0 (or 0 for the flux at the photosphere)", *dist)
+	if !(*f.dist >= 0) || math.IsInf(*f.dist, 0) {
+		return nil, usagef("--distance-mpc %g: want > 0 (or 0 for the flux at the photosphere)", *f.dist)
 	}
 	var dop synth.Doppler
-	switch *doppler {
+	switch *f.doppler {
 	case "first-order":
 		dop = synth.FirstOrder
 	case "relativistic":
 		dop = synth.Relativistic
 	default:
-		return usagef("--doppler %q: want first-order or relativistic", *doppler)
+		return nil, usagef("--doppler %q: want first-order or relativistic", *f.doppler)
 	}
 	var out []int
-	for _, w := range without {
+	for _, w := range f.without {
 		e, err := linelists.ElementBySymbol(w)
 		if err != nil {
-			return usagef("--without %q: %v", w, err)
+			return nil, usagef("--without %q: %v", w, err)
 		}
 		out = append(out, e.Z)
 	}
 	ej := synth.Ejecta{
 		Time: days * spectra.Day, Mass: mass * spectra.SolarMass,
-		BetaIn: vin.beta, BetaPh: vph.beta, BetaMax: vout.beta,
-		DensityIndex: *index, Temperature: temp, Diluted: *diluted,
+		BetaIn: f.vin.beta, BetaPh: vph, BetaMax: vout,
+		DensityIndex: *f.index, Temperature: temp, Diluted: *f.diluted,
 	}
 	if err := ej.Validate(); err != nil {
-		return usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
+		return nil, usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
 	}
 
 	// Read the line lists, keeping only lines that can act on the range.
-	fromA, toA := *from*1e4, *to*1e4
-	g := vout.beta
+	fromA, toA := from*1e4, to*1e4
 	b := linelists.NewBuilder()
-	filter := linelists.Filter{MinWavelength: fromA * math.Sqrt(1-g*g) / (1 + g), MaxWavelength: toA / (1 - g)}
-	skipped := 0
-	for _, name := range lines {
-		rep, err := readFile(name, func(r io.Reader) (int, error) {
-			fr, err := b.Read(r, linelists.ReadOptions{Name: name, Filter: filter})
+	su := &modelSetup{comp: comp, ejecta: ej,
+		filter: linelists.Filter{MinWavelength: fromA * math.Sqrt(1-vout*vout) / (1 + vout), MaxWavelength: toA / (1 - vout)},
+		settings: synth.Settings{Preview: *f.preview, Without: out, Workers: runtime.GOMAXPROCS(0),
+			Options: synth.Options{Doppler: dop}}}
+	for _, name := range f.lines {
+		n, err := readFile(name, func(r io.Reader) (int, error) {
+			fr, err := b.Read(r, linelists.ReadOptions{Name: name, Filter: su.filter})
 			return fr.Skipped.Total(), err
 		})
 		if err != nil {
-			return usagef("--lines: %v", err)
+			return nil, usagef("--lines: %v", err)
 		}
-		skipped += rep
+		su.skipped += n
 	}
-	for _, name := range levels {
+	for _, name := range f.levels {
 		if _, err := readFile(name, func(r io.Reader) (int, error) {
 			_, err := b.ReadLevels(r, linelists.LevelsOptions{Name: name})
 			return 0, err
 		}); err != nil {
-			return usagef("--levels: %v", err)
+			return nil, usagef("--levels: %v", err)
 		}
 	}
-	st, rep := b.Build()
-
-	m, err := synth.NewModel(st, fromA, toA, 0)
-	if err != nil {
-		return usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
+	su.store, su.report = b.Build()
+	if su.model, err = synth.NewModel(su.store, fromA, toA, 0); err != nil {
+		return nil, usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
 	}
-	set := synth.Settings{Preview: *preview, Without: out, Workers: runtime.GOMAXPROCS(0),
-		Options: synth.Options{Doppler: dop}}
-	res, err := m.Spectrum(context.Background(), comp, ej, set)
+	return su, nil
+}
+
+// describe writes the one-line account of the lines read and the warnings
+// of the reading and of res to stderr, for command name.
+func (su *modelSetup) describe(stderr io.Writer, name string, preview bool, warnings []string) {
+	fmt.Fprintf(stderr, "%s: %d lines in %d species (%d lines outside %.4g–%.4g Å skipped, they cannot act on the range)",
+		name, su.report.Lines, len(su.store.SpeciesTable), su.skipped, su.filter.MinWavelength, su.filter.MaxWavelength)
+	if preview {
+		fmt.Fprint(stderr, "; ABSORPTION-ONLY PREVIEW, not the full model")
+	}
+	fmt.Fprintln(stderr)
+	for _, w := range append(slices.Clone(su.report.Warnings), warnings...) {
+		fmt.Fprintln(stderr, name+": warning:", w)
+	}
+}
+
+func runModel(c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet(c, stderr)
+	f := addModelFlags(fs, true)
+	pos, err := fs.parse(args)
 	if err != nil {
 		return err
 	}
-	if *dist > 0 {
-		res.Flux = res.AtDistance(*dist * spectra.Megaparsec)
+	if len(pos) > 0 {
+		return usagef("unexpected argument %q (line lists go after --lines)", pos[0])
 	}
-	flux, norm, err := res.Observe(*rp, nil)
+	su, err := f.setup(math.NaN())
+	if err != nil {
+		return err
+	}
+	res, err := su.model.Spectrum(context.Background(), su.comp, su.ejecta, su.settings)
+	if err != nil {
+		return err
+	}
+	if *f.dist > 0 {
+		res.Flux = res.AtDistance(*f.dist * spectra.Megaparsec)
+	}
+	flux, norm, err := res.Observe(*f.rp, nil)
 	if err != nil {
 		return err
 	}
@@ -290,15 +352,7 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 	if _, err := stdout.Write(buf.Bytes()); err != nil {
 		return err
 	}
-	fmt.Fprintf(stderr, "model: %d lines in %d species (%d lines outside %.4g–%.4g Å skipped, they cannot act on the range)",
-		rep.Lines, len(st.SpeciesTable), skipped, filter.MinWavelength, filter.MaxWavelength)
-	if *preview {
-		fmt.Fprint(stderr, "; ABSORPTION-ONLY PREVIEW, not the full model")
-	}
-	fmt.Fprintln(stderr)
-	for _, w := range append(rep.Warnings, res.Warnings...) {
-		fmt.Fprintln(stderr, "model: warning:", w)
-	}
+	su.describe(stderr, "model", *f.preview, res.Warnings)
 	return nil
 }
 

@@ -32,47 +32,70 @@ const maxSweepSteps = 400
 
 // sweepVelocity synthesises the session's model at steps velocities evenly
 // spaced from lo to hi (v/c) and compares each with the observed spectrum.
-// progress, when not nil, is called after each velocity with the number
+// progress, when not nil, is called after each synthesis with the number
 // done and the total. The work stops when ctx is done (an error wrapping
 // ctx.Err()).
 func (b *bench) sweepVelocity(ctx context.Context, s *Session, lo, hi float64, steps int, progress func(done, total int)) (*velocitySweep, error) {
-	outer := b.data.Scenario.OuterVelocity
-	switch {
-	case !(lo > 0) || !(hi > lo) || hi >= outer:
-		return nil, fmt.Errorf("velocity sweep: range %g–%g c must satisfy 0 < from < to < outer velocity %g c", lo, hi, outer)
-	case steps < 3 || steps > maxSweepSteps:
-		return nil, fmt.Errorf("velocity sweep: %d steps (want 3–%d)", steps, maxSweepSteps)
+	if outer := b.data.Scenario.OuterVelocity; hi >= outer {
+		return nil, fmt.Errorf("velocity sweep: range %g–%g c must end below the outer velocity %g c", lo, hi, outer)
 	}
 	if err := s.Validate(b.data); err != nil {
 		return nil, err
 	}
-	sw := &velocitySweep{Epoch: s.Epoch, Velocity: make([]float64, steps), Chi2N: make([]float64, steps), Preview: s.Preview}
-	h := (hi - lo) / float64(steps-1)
-	total := steps + refineEvals
-	done := 0
 	at := *s
-	chi2n := func(v float64) (float64, error) {
-		if err := ctx.Err(); err != nil {
-			return 0, fmt.Errorf("velocity sweep: %w", err)
-		}
+	sw, err := sweep(ctx, lo, hi, steps, func(ctx context.Context, v float64) (float64, error) {
 		at.PhotosphereVelocity = v
 		ov, err := b.compute(ctx, &at)
 		if err != nil {
-			return 0, fmt.Errorf("velocity sweep at %.4g c: %w", v, err)
+			return 0, err
 		}
 		if ov.N == 0 {
-			return 0, fmt.Errorf("velocity sweep: no unmasked samples with uncertainties to compare")
+			return 0, fmt.Errorf("no unmasked samples with uncertainties to compare")
+		}
+		return ov.Chi2 / float64(ov.N), nil
+	}, progress)
+	if err != nil {
+		return nil, err
+	}
+	sw.Epoch, sw.Preview = s.Epoch, s.Preview
+	return sw, nil
+}
+
+// sweep evaluates chi2n (χ²/N of the model at photosphere velocity v/c) at
+// steps velocities evenly spaced from lo to hi, then refines the lowest by
+// a golden-section search between its neighbours (refineEvals more
+// evaluations, none when the lowest is at an end). progress, when not nil,
+// is called after each evaluation. It stops when ctx is done (an error
+// wrapping ctx.Err()).
+func sweep(ctx context.Context, lo, hi float64, steps int, chi2n func(context.Context, float64) (float64, error), progress func(done, total int)) (*velocitySweep, error) {
+	switch {
+	case !(lo > 0) || !(hi > lo) || hi >= 1:
+		return nil, fmt.Errorf("velocity sweep: range %g–%g c must satisfy 0 < from < to < 1", lo, hi)
+	case steps < 3 || steps > maxSweepSteps:
+		return nil, fmt.Errorf("velocity sweep: %d steps (want 3–%d)", steps, maxSweepSteps)
+	}
+	sw := &velocitySweep{Velocity: make([]float64, steps), Chi2N: make([]float64, steps)}
+	h := (hi - lo) / float64(steps-1)
+	total := steps + refineEvals
+	done := 0
+	eval := func(v float64) (float64, error) {
+		if err := ctx.Err(); err != nil {
+			return 0, fmt.Errorf("velocity sweep: %w", err)
+		}
+		x, err := chi2n(ctx, v)
+		if err != nil {
+			return 0, fmt.Errorf("velocity sweep at %.4g c: %w", v, err)
 		}
 		done++
 		if progress != nil {
 			progress(done, total)
 		}
-		return ov.Chi2 / float64(ov.N), nil
+		return x, nil
 	}
 	best := 0
 	for i := range steps {
 		v := lo + float64(i)*h
-		x, err := chi2n(v)
+		x, err := eval(v)
 		if err != nil {
 			return nil, err
 		}
@@ -93,11 +116,11 @@ func (b *bench) sweepVelocity(ctx context.Context, s *Session, lo, hi float64, s
 	const g = 0.6180339887498949 // (√5 − 1)/2
 	a, c := sw.Velocity[best-1], sw.Velocity[best+1]
 	x1, x2 := c-g*(c-a), a+g*(c-a)
-	f1, err := chi2n(x1)
+	f1, err := eval(x1)
 	if err != nil {
 		return nil, err
 	}
-	f2, err := chi2n(x2)
+	f2, err := eval(x2)
 	if err != nil {
 		return nil, err
 	}
@@ -112,14 +135,14 @@ func (b *bench) sweepVelocity(ctx context.Context, s *Session, lo, hi float64, s
 		if f1 < f2 {
 			c, x2, f2 = x2, x1, f1
 			x1 = c - g*(c-a)
-			if f1, err = chi2n(x1); err != nil {
+			if f1, err = eval(x1); err != nil {
 				return nil, err
 			}
 			consider(x1, f1)
 		} else {
 			a, x1, f1 = x1, x2, f2
 			x2 = a + g*(c-a)
-			if f2, err = chi2n(x2); err != nil {
+			if f2, err = eval(x2); err != nil {
 				return nil, err
 			}
 			consider(x2, f2)

@@ -1,0 +1,120 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"os/signal"
+	"strconv"
+
+	"broadline/spectra"
+)
+
+func init() {
+	c := &command{
+		name: "sweep",
+		args: "--spectrum FILE --from-velocity V --to-velocity V [--steps N] --lines FILE… --mass-fractions LIST " +
+			"--days D --outer-velocity V --temperature K --ejecta-mass M --distance-mpc D [model flags as for model]",
+		summary: "fit the photosphere velocity to an observed spectrum (CSV velocity_c,chi2_per_sample)",
+	}
+	c.run = func(args []string, stdout, stderr io.Writer) error { return runSweep(c, args, stdout, stderr) }
+	register(c)
+}
+
+// runSweep synthesises the model of the flags at evenly spaced photosphere
+// velocities, compares each with the observed spectrum (χ² over its
+// unmasked samples with uncertainties, the model smoothed to
+// --resolving-power and put at --distance-mpc), refines the best, and
+// writes the grid as CSV; the best velocity goes to stderr.
+func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
+	fs := newFlagSet(c, stderr)
+	f := addModelFlags(fs, false)
+	specPath := fs.String("spectrum", "", "observed spectrum `FILE` with uncertainties, in our text format or FITS "+
+		"(e.g. written by prep: rest frame, dereddened, telluric bands flagged; required)")
+	var lo, hi velocityFlag
+	fs.Var(&lo, "from-velocity", "lowest photosphere `velocity` of the sweep, e.g. 0.1c (required)")
+	fs.Var(&hi, "to-velocity", "highest photosphere `velocity`, below --outer-velocity (required)")
+	steps := fs.Int("steps", 21, "number of velocities, evenly spaced (3–400); the lowest is then refined with 10 more syntheses")
+	pos, err := fs.parse(args)
+	if err != nil {
+		return err
+	}
+	if len(pos) > 0 {
+		return usagef("unexpected argument %q", pos[0])
+	}
+	switch {
+	case *specPath == "":
+		return usagef("--spectrum: the observed spectrum to compare with is required")
+	case !lo.set || !hi.set:
+		return usagef("--from-velocity and --to-velocity are required (e.g. 0.1c and 0.3c)")
+	case !(lo.beta > 0) || !(hi.beta > lo.beta):
+		return usagef("--from-velocity %gc --to-velocity %gc: want 0 < from < to", lo.beta, hi.beta)
+	case f.vout.set && hi.beta >= f.vout.beta:
+		return usagef("--to-velocity %gc: must lie below --outer-velocity %gc", hi.beta, f.vout.beta)
+	case *steps < 3 || *steps > maxSweepSteps:
+		return usagef("--steps %d: want 3–%d", *steps, maxSweepSteps)
+	case !(*f.dist > 0):
+		return usagef("--distance-mpc is required: the observed flux is compared with the model's at that distance")
+	}
+	su, err := f.setup(lo.beta)
+	if err != nil {
+		return err
+	}
+	obs, err := spectra.ReadFile(*specPath, spectra.ReadOptions{})
+	if err != nil {
+		return usagef("--spectrum: %v", err)
+	}
+	if obs.Uncertainty == nil {
+		return usagef("--spectrum %s: no uncertainty column: χ² needs one", *specPath)
+	}
+
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	var warnings []string
+	var n int
+	sw, err := sweep(ctx, lo.beta, hi.beta, *steps, func(ctx context.Context, v float64) (float64, error) {
+		ej := su.ejecta
+		ej.BetaPh = v
+		res, err := su.model.Spectrum(ctx, su.comp, ej, su.settings)
+		if err != nil {
+			return 0, err
+		}
+		res.Flux = res.AtDistance(*f.dist * spectra.Megaparsec)
+		ov, err := compareObserved(obs, res, *f.rp)
+		if err != nil {
+			return 0, err
+		}
+		if ov.N == 0 {
+			return 0, fmt.Errorf("no unmasked samples with uncertainties inside the model's range")
+		}
+		warnings, n = res.Warnings, ov.N
+		return ov.Chi2 / float64(ov.N), nil
+	}, nil)
+	if err != nil {
+		return err
+	}
+	var buf bytes.Buffer
+	buf.WriteString("velocity_c,chi2_per_sample\n")
+	for i, v := range sw.Velocity {
+		buf.WriteString(strconv.FormatFloat(v, 'f', 6, 64))
+		buf.WriteByte(',')
+		buf.WriteString(strconv.FormatFloat(sw.Chi2N[i], 'g', 7, 64))
+		buf.WriteByte('\n')
+	}
+	if _, err := stdout.Write(buf.Bytes()); err != nil {
+		return err
+	}
+	su.describe(stderr, "sweep", *f.preview, warnings)
+	fmt.Fprintf(stderr, "sweep: best velocity_c=%.5f (%.0f km/s) chi2_per_sample=%.4g samples=%d at_edge=%v\n",
+		sw.Best, sw.Best*spectra.SpeedOfLightKmS, sw.BestChi2N, n, sw.AtEdge)
+	if sw.AtEdge {
+		fmt.Fprintln(stderr, "sweep: warning: the least χ²/N is at an end of the range; the minimum may lie outside it")
+	}
+	if math.IsNaN(sw.BestChi2N) {
+		return fmt.Errorf("sweep: χ²/N is not a number (check the spectrum's uncertainties)")
+	}
+	return nil
+}

@@ -1,0 +1,101 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// demoSweepArgs are the sweep command's flags for epoch i of the built-in
+// demo, read from its files on disk with the scenario's recorded values.
+func demoSweepArgs(t *testing.T, i int, extra ...string) []string {
+	t.Helper()
+	d, err := loadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	sc := d.Scenario
+	ep := sc.Epochs[i]
+	args := []string{"sweep", "--spectrum", filepath.Join("demo", "spectra", ep.File),
+		"--mass-fractions", sc.MassFractions, "--days", fmt.Sprint(ep.Days),
+		"--outer-velocity", fmt.Sprintf("%gc", sc.OuterVelocity), "--inner-velocity", fmt.Sprintf("%gc", sc.InnerVelocity),
+		"--density-index", fmt.Sprint(sc.DensityIndex), "--temperature", fmt.Sprint(ep.Temperature),
+		"--ejecta-mass", fmt.Sprint(sc.EjectaMassSolar), "--distance-mpc", fmt.Sprint(sc.DistanceMpc),
+		"--resolving-power", fmt.Sprint(sc.Instrument.ResolvingPower),
+		"--from-um", fmt.Sprint(sc.ModelFromUm), "--to-um", fmt.Sprint(sc.ModelToUm)}
+	for _, l := range sc.LineFiles {
+		args = append(args, "--lines", filepath.Join("demo", "spectra", l))
+	}
+	for _, l := range sc.LevelFiles {
+		args = append(args, "--levels", filepath.Join("demo", "spectra", l))
+	}
+	return append(args, extra...)
+}
+
+// TestSweepCommandRecoversDemo: the headless sweep on the demo's files (the
+// invented spectrum is the model at recorded parameters plus noise) finds
+// the recorded photosphere velocity to 0.002 c, reports it on stderr in its
+// fixed form, and writes one CSV row per grid velocity.
+func TestSweepCommandRecoversDemo(t *testing.T) {
+	d, err := loadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	truth := d.Scenario.Epochs[1].PhotosphereVelocity
+	status, out, errs := runCmd(demoSweepArgs(t, 1, "--from-velocity", fmt.Sprintf("%gc", truth-0.05),
+		"--to-velocity", fmt.Sprintf("%gc", truth+0.05), "--steps", "6")...)
+	if status != 0 {
+		t.Fatalf("status %d: %s", status, errs)
+	}
+	rows := strings.Split(strings.TrimSpace(out), "\n")
+	if rows[0] != "velocity_c,chi2_per_sample" || len(rows) != 7 {
+		t.Fatalf("CSV %q", out)
+	}
+	i := strings.Index(errs, "sweep: best velocity_c=")
+	if i < 0 {
+		t.Fatalf("stderr %q", errs)
+	}
+	var best, chi float64
+	var n int
+	var edge bool
+	if _, err := fmt.Sscanf(errs[i:], "sweep: best velocity_c=%g (%s km/s) chi2_per_sample=%g samples=%d at_edge=%t", &best, new(string), &chi, &n, &edge); err != nil {
+		t.Fatalf("best line %q: %v", errs[i:], err)
+	}
+	t.Logf("recorded %.4f c, best %.5f c, χ²/N %.3f over %d samples", truth, best, chi, n)
+	if math.Abs(best-truth) > 0.002 || edge || chi > 1.5 || n < 500 {
+		t.Errorf("best %.5f c (recorded %.4f), χ²/N %.3f, %d samples, at edge %v", best, truth, chi, n, edge)
+	}
+	for _, r := range rows[1:] {
+		c := strings.Split(r, ",")
+		x, err := strconv.ParseFloat(c[1], 64)
+		if len(c) != 2 || err != nil || x < chi {
+			t.Errorf("row %q: a grid value below the refined best %g", r, chi)
+		}
+	}
+}
+
+// TestSweepCommandErrors: bad requests end with exit status 2, one line
+// naming the flag, and nothing on stdout.
+func TestSweepCommandErrors(t *testing.T) {
+	noUnc := writeTemp(t, "s.txt", "wavelength_um flux\n0.5 1e-17\n0.6 1e-17\n0.7 1e-17\n")
+	for name, c := range map[string]struct {
+		args []string
+		want string
+	}{
+		"no spectrum": {demoSweepArgs(t, 0, "--spectrum", "", "--from-velocity", "0.1c", "--to-velocity", "0.3c"), "--spectrum"},
+		"no range":    {demoSweepArgs(t, 0), "--from-velocity"},
+		"beyond edge": {demoSweepArgs(t, 0, "--from-velocity", "0.1c", "--to-velocity", "0.36c"), "--to-velocity"},
+		"reversed":    {demoSweepArgs(t, 0, "--from-velocity", "0.3c", "--to-velocity", "0.1c"), "--from-velocity"},
+		"few steps":   {demoSweepArgs(t, 0, "--from-velocity", "0.1c", "--to-velocity", "0.3c", "--steps", "2"), "--steps"},
+		"no distance": {demoSweepArgs(t, 0, "--from-velocity", "0.1c", "--to-velocity", "0.3c", "--distance-mpc", "0"), "--distance-mpc"},
+		"no σ":        {demoSweepArgs(t, 0, "--spectrum", noUnc, "--from-velocity", "0.1c", "--to-velocity", "0.3c"), "uncertainty"},
+	} {
+		status, out, errs := runCmd(c.args...)
+		if status != 2 || out != "" || !strings.Contains(errs, c.want) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+			t.Errorf("%s: status %d, stdout %q, stderr %q (want 2, nothing, one line naming %s)", name, status, out, errs, c.want)
+		}
+	}
+}
