@@ -2,9 +2,12 @@ package main
 
 import (
 	"embed"
+	"encoding/json"
 	"fmt"
 	"io/fs"
+	"os"
 	"path"
+	"path/filepath"
 
 	"broadline/opacity/synth"
 	"broadline/spectra"
@@ -24,8 +27,11 @@ const demoDir = "demo/spectra"
 type dataset struct {
 	Scenario *synth.Scenario
 	Observed []*spectra.Spectrum // one per epoch, in the scenario's order
-	fsys     fs.FS
-	dir      string
+	// name identifies the dataset in saved sessions: "demo", or the
+	// absolute path of a dataset file.
+	name string
+	fsys fs.FS
+	dir  string
 }
 
 // loadDataset reads the scenario file scenario.json in dir of fsys and the
@@ -40,7 +46,7 @@ func loadDataset(fsys fs.FS, dir string) (*dataset, error) {
 	if err != nil {
 		return nil, err
 	}
-	d := &dataset{Scenario: sc, fsys: fsys, dir: dir}
+	d := &dataset{Scenario: sc, name: "demo", fsys: fsys, dir: dir}
 	for _, ep := range sc.Epochs {
 		name := path.Join(dir, ep.File)
 		r, err := fsys.Open(name)
@@ -62,3 +68,66 @@ func loadDataset(fsys fs.FS, dir string) (*dataset, error) {
 
 // loadDemo returns the built-in demo dataset.
 func loadDemo() (*dataset, error) { return loadDataset(demoFS, demoDir) }
+
+// writeDemoDataset writes the built-in demo into dir as a dataset of one's
+// own would be laid out — lines/ (line lists and levels files), spectra/
+// (the three invented spectra) and dataset.json (see datasetFile) — and
+// returns the dataset file's path: a template to edit. It refuses to write
+// over an existing dataset.json.
+func writeDemoDataset(dir string) (string, error) {
+	d, err := loadDemo()
+	if err != nil {
+		return "", err
+	}
+	sc := d.Scenario
+	out := filepath.Join(dir, "dataset.json")
+	if _, err := os.Stat(out); err == nil {
+		return "", fmt.Errorf("%s exists: not overwritten", out)
+	}
+	f := datasetFile{
+		Object: sc.Object, Note: sc.Label, DistanceMpc: sc.DistanceMpc, ResolvingPower: sc.Instrument.ResolvingPower,
+		MassFractions: sc.MassFractions, EjectaMass: sc.EjectaMassSolar, InnerVelocity: sc.InnerVelocity,
+		OuterVelocity: sc.OuterVelocity, DensityIndex: sc.DensityIndex, Diluted: sc.Diluted,
+		ModelFromUm: sc.ModelFromUm, ModelToUm: sc.ModelToUm,
+	}
+	copyTo := func(src, sub string) (string, error) {
+		data, err := fs.ReadFile(demoFS, path.Join(demoDir, src))
+		if err != nil {
+			return "", err
+		}
+		name := path.Join(sub, path.Base(src))
+		if err := os.MkdirAll(filepath.Join(dir, sub), 0o755); err != nil {
+			return "", err
+		}
+		return name, writeFileAtomic(filepath.Join(dir, filepath.FromSlash(name)), data)
+	}
+	for _, l := range sc.LineFiles {
+		name, err := copyTo(l, "lines")
+		if err != nil {
+			return "", fmt.Errorf("example dataset: %w", err)
+		}
+		f.LineFiles = append(f.LineFiles, name)
+	}
+	for _, l := range sc.LevelFiles {
+		name, err := copyTo(l, "lines")
+		if err != nil {
+			return "", fmt.Errorf("example dataset: %w", err)
+		}
+		f.LevelFiles = append(f.LevelFiles, name)
+	}
+	for _, ep := range sc.Epochs {
+		name, err := copyTo(ep.File, "spectra")
+		if err != nil {
+			return "", fmt.Errorf("example dataset: %w", err)
+		}
+		f.Epochs = append(f.Epochs, datasetSpec{File: name, Days: ep.Days, PhotosphereVelocity: ep.PhotosphereVelocity, Temperature: ep.Temperature})
+	}
+	js, err := json.MarshalIndent(f, "", "  ")
+	if err != nil {
+		return "", fmt.Errorf("example dataset: %w", err)
+	}
+	if err := writeFileAtomic(out, append(js, '\n')); err != nil {
+		return "", fmt.Errorf("example dataset: %w", err)
+	}
+	return out, nil
+}

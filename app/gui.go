@@ -33,7 +33,7 @@ func runWorkbench() error {
 		return fmt.Errorf("demo: %w", err)
 	}
 	a := app.NewWithID("org.broadline.workbench")
-	wb := newWorkbench(a, b, newSession("demo", d))
+	wb := newWorkbench(a, b, newSession(d.name, d))
 	wb.win.Resize(fyne.NewSize(1280, 800))
 	wb.recompute()
 	wb.win.ShowAndRun()
@@ -84,8 +84,17 @@ type shownComparison struct {
 
 // newWorkbench builds the window in app a for bench b and session s.
 func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
-	wb := &workbench{win: a.NewWindow("broadline"), bench: b, sess: s}
+	return newWorkbenchIn(a.NewWindow("broadline"), b, s)
+}
+
+// newWorkbenchIn fills window win with the workbench for bench b and
+// session s (replacing what it showed).
+func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
+	wb := &workbench{win: win, bench: b, sess: s}
 	sc := b.data.Scenario
+	if b.data.name != "demo" {
+		win.SetTitle("broadline — " + sc.Object)
+	}
 
 	var epochs []string
 	for _, ep := range sc.Epochs {
@@ -110,7 +119,7 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 	wb.velocity.OnChangeEnded = func(float64) { wb.recompute() }
 
 	wb.tempLabel = widget.NewLabel("")
-	wb.temp = widget.NewSlider(2000, 12000)
+	wb.temp = widget.NewSlider(minSliderT, maxSliderT)
 	wb.temp.Step = 50
 	wb.temp.OnChanged = func(v float64) { wb.sess.Temperature = v; wb.showValues() }
 	wb.temp.OnChangeEnded = func(float64) { wb.recompute() }
@@ -215,6 +224,7 @@ func newWorkbench(a fyne.App, b *bench, s *Session) *workbench {
 	wb.win.SetContent(split)
 	wb.win.SetMainMenu(fyne.NewMainMenu(
 		fyne.NewMenu("Session",
+			fyne.NewMenuItem("Open dataset…", func() { wb.openDatasetDialog() }),
 			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
 		),

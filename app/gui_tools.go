@@ -17,6 +17,8 @@ import (
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot/vg"
+
+	"broadline/linelists"
 )
 
 // The workbench's tools beyond the live model: the velocity sweep, the kept
@@ -245,4 +247,70 @@ func defaultFigurePath() string {
 		return "comparison.png"
 	}
 	return filepath.Join(dir, "comparison.png")
+}
+
+// openDatasetDialog asks for a dataset file and opens it.
+func (wb *workbench) openDatasetDialog() {
+	path := widget.NewEntry()
+	path.SetText(defaultDatasetPath())
+	dialog.ShowForm("Open dataset", "Open", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("Dataset file", path),
+			widget.NewFormItem("", widget.NewLabel("A dataset file names your spectra, line lists and the fixed model\nparameters (README, \"Dataset files\"); `broadline example DIR` writes one to start from.")),
+		},
+		func(ok bool) {
+			if ok {
+				wb.startOpenDataset(path.Text)
+			}
+		}, wb.win)
+}
+
+// startOpenDataset reads the dataset file at path, its spectra and its
+// line lists off the UI goroutine, with the line lists' progress and
+// Cancel; when it is read, the window shows it with a fresh session and
+// the current session is dropped (save it first to keep it).
+func (wb *workbench) startOpenDataset(path string) {
+	ctx, gen := wb.begin(true, "reading the dataset "+path+"…")
+	go func() {
+		b, err := openDataset(ctx, path, func(p linelists.Progress) {
+			frac := float64(p.Index)
+			if p.Total > 0 {
+				frac += float64(p.Done) / float64(p.Total)
+			}
+			wb.progressFunc(gen)(int(1000*frac), 1000*p.Files)
+		})
+		fyne.Do(func() { wb.finishOpenDataset(gen, b, err) })
+	}()
+}
+
+// finishOpenDataset shows the dataset just read in this window.
+func (wb *workbench) finishOpenDataset(gen int, b *bench, err error) {
+	if !wb.end(gen) {
+		return
+	}
+	if err != nil {
+		wb.showJobError(err)
+		if wb.jobDone != nil {
+			wb.jobDone(nil, err)
+		}
+		if !errors.Is(err, context.Canceled) {
+			dialog.ShowError(err, wb.win)
+		}
+		return
+	}
+	nw := newWorkbenchIn(wb.win, b, newSession(b.data.name, b.data))
+	nw.done, nw.jobDone = wb.done, wb.jobDone
+	nw.recompute()
+	if wb.jobDone != nil {
+		wb.jobDone(nw, nil)
+	}
+}
+
+// defaultDatasetPath is dataset.json in the working directory.
+func defaultDatasetPath() string {
+	dir, err := os.Getwd()
+	if err != nil {
+		return "dataset.json"
+	}
+	return filepath.Join(dir, "dataset.json")
 }

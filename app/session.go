@@ -20,7 +20,8 @@ const sessionVersion = 1
 // a display, and it is saved as JSON.
 type Session struct {
 	Version int `json:"version"`
-	// Dataset names the scenario: "demo" for the built-in demo.
+	// Dataset names the dataset: "demo" for the built-in demo, else the
+	// absolute path of the dataset file.
 	Dataset string `json:"dataset"`
 	// Epoch is the index of the shown epoch in the dataset.
 	Epoch int `json:"epoch"`
