@@ -1,7 +1,9 @@
 package main
 
 import (
+	"bytes"
 	"context"
+	"encoding/json"
 	"errors"
 	"os"
 	"path/filepath"
@@ -128,4 +130,55 @@ func TestWorkbenchOpensDataset(t *testing.T) {
 	if err := <-ch; err == nil || nw.bench.data.name != path {
 		t.Errorf("opening a missing file: %v; dataset now %q", err, nw.bench.data.name)
 	}
+}
+
+// FuzzDatasetFile: any bytes give a checked dataset or an error, never a
+// panic; an accepted file has what the workbench relies on.
+func FuzzDatasetFile(f *testing.F) {
+	f.Add([]byte(`{"object":"X","distance_mpc":40,"resolving_power":500,"line_files":["a"],"mass_fractions":"Sr=1",` +
+		`"ejecta_mass_msun":0.04,"inner_velocity_c":0.05,"outer_velocity_c":0.35,"density_index":3,"model_from_um":0.4,` +
+		`"model_to_um":2.5,"epochs":[{"file":"s","days":1.5,"photosphere_velocity_c":0.2,"temperature_k":5000}]}`))
+	f.Add([]byte(`{"object":"X","epochs":[]}`))
+	f.Add([]byte(`{`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		d, err := readDatasetFile(bytes.NewReader(data), "fuzz.json")
+		if err != nil {
+			return
+		}
+		sc := d.scenario()
+		if len(sc.Epochs) == 0 || len(sc.LineFiles) == 0 || !(sc.DistanceMpc > 0) || !(sc.Instrument.ResolvingPower > 0) {
+			t.Fatalf("accepted an incomplete dataset: %+v", d)
+		}
+		for i := range sc.Epochs {
+			if err := sc.Ejecta(i).Validate(); err != nil {
+				t.Fatalf("accepted epoch %d with bad ejecta: %v", i, err)
+			}
+		}
+	})
+}
+
+// FuzzSession: any bytes give a session or an error, never a panic; a
+// session that validates against the demo can be saved and read back equal.
+func FuzzSession(f *testing.F) {
+	d, err := loadDemo()
+	if err != nil {
+		f.Fatal(err)
+	}
+	js, _ := json.Marshal(newSession("demo", d))
+	f.Add(js)
+	f.Add([]byte(`{"version":1,"dataset":"demo","candidates":[{"label":"A"}]}`))
+	f.Fuzz(func(t *testing.T, data []byte) {
+		s, err := readSession(bytes.NewReader(data))
+		if err != nil || s.Validate(d) != nil {
+			return
+		}
+		back, err := json.Marshal(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s2, err := readSession(bytes.NewReader(back))
+		if err != nil || s2.Validate(d) != nil {
+			t.Fatalf("a valid session does not survive saving: %v", err)
+		}
+	})
 }

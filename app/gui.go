@@ -160,7 +160,7 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 		})
 	candScroll := container.NewVScroll(wb.candList)
 	candScroll.SetMinSize(fyne.NewSize(0, 120))
-	reset := widget.NewButton("Reset to the recorded values", func() {
+	reset := widget.NewButton("Reset to the dataset's values", func() {
 		wb.sess.resetModel(wb.bench.data)
 		wb.syncControls()
 		wb.recompute()
