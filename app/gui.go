@@ -414,7 +414,7 @@ func (wb *workbench) stop() {
 // temporary file renamed over the old one, so a failed save loses nothing).
 func (wb *workbench) saveDialog() {
 	path := widget.NewEntry()
-	path.SetText(defaultSessionPath())
+	path.SetText(inWorkDir("session.json"))
 	dialog.ShowForm("Save session", "Save", "Cancel",
 		[]*widget.FormItem{widget.NewFormItem("File", path)},
 		func(ok bool) {
@@ -433,7 +433,7 @@ func (wb *workbench) saveDialog() {
 // fit the dataset is refused with its reason and changes nothing.
 func (wb *workbench) openDialog() {
 	path := widget.NewEntry()
-	path.SetText(defaultSessionPath())
+	path.SetText(inWorkDir("session.json"))
 	dialog.ShowForm("Open session", "Open", "Cancel",
 		[]*widget.FormItem{widget.NewFormItem("File", path)},
 		func(ok bool) {
@@ -459,13 +459,14 @@ func (wb *workbench) openSession(path string) error {
 	return nil
 }
 
-// defaultSessionPath is session.json in the working directory.
-func defaultSessionPath() string {
+// inWorkDir is name in the working directory (or name alone when that is
+// unknown): where the file dialogs start.
+func inWorkDir(name string) string {
 	dir, err := os.Getwd()
 	if err != nil {
-		return "session.json"
+		return name
 	}
-	return filepath.Join(dir, "session.json")
+	return filepath.Join(dir, name)
 }
 
 // showModelHelp opens the dialog that states the model's approximations.

@@ -6,8 +6,6 @@ import (
 	"fmt"
 	"image"
 	"math"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -218,7 +216,7 @@ func (wb *workbench) finishComparison(gen int, shown *shownComparison, img image
 	fig.FillMode = canvas.ImageFillContain
 	fig.SetMinSize(fyne.NewSize(900, 560))
 	path := widget.NewEntry()
-	path.SetText(defaultFigurePath())
+	path.SetText(inWorkDir("comparison.png"))
 	export := widget.NewButton("Export", func() {
 		if err := wb.exportComparison(path.Text); err != nil {
 			dialog.ShowError(err, wb.win)
@@ -240,19 +238,10 @@ func (wb *workbench) exportComparison(path string) error {
 	return nil
 }
 
-// defaultFigurePath is comparison.png in the working directory.
-func defaultFigurePath() string {
-	dir, err := os.Getwd()
-	if err != nil {
-		return "comparison.png"
-	}
-	return filepath.Join(dir, "comparison.png")
-}
-
 // openDatasetDialog asks for a dataset file and opens it.
 func (wb *workbench) openDatasetDialog() {
 	path := widget.NewEntry()
-	path.SetText(defaultDatasetPath())
+	path.SetText(inWorkDir("dataset.json"))
 	dialog.ShowForm("Open dataset", "Open", "Cancel",
 		[]*widget.FormItem{
 			widget.NewFormItem("Dataset file", path),
@@ -304,13 +293,4 @@ func (wb *workbench) finishOpenDataset(gen int, b *bench, err error) {
 	if wb.jobDone != nil {
 		wb.jobDone(nw, nil)
 	}
-}
-
-// defaultDatasetPath is dataset.json in the working directory.
-func defaultDatasetPath() string {
-	dir, err := os.Getwd()
-	if err != nil {
-		return "dataset.json"
-	}
-	return filepath.Join(dir, "dataset.json")
 }
