@@ -18,6 +18,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
+	"broadline/opacity/synth"
 	"broadline/spectra"
 )
 
@@ -63,6 +64,9 @@ type workbench struct {
 	figure    *canvas.Image
 	features  *widget.Table
 	featRows  []spectra.Feature
+	// featAttr holds the model's identification of each feature, for the
+	// model that was shown when Identify was pressed; nil until then.
+	featAttr []*synth.Attribution
 
 	mu     sync.Mutex
 	cancel context.CancelFunc // of the running computation, if any
@@ -199,23 +203,27 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 	plot := widget.NewCard("Spectrum", "", container.NewBorder(banner, nil, nil, nil, wb.figure))
 
 	wb.features = widget.NewTableWithHeaders(
-		func() (int, int) { return len(wb.featRows), 4 },
+		func() (int, int) { return len(wb.featRows), 6 },
 		func() fyne.CanvasObject { return widget.NewLabel("0.000000 µm") },
 		func(id widget.TableCellID, o fyne.CanvasObject) {
-			o.(*widget.Label).SetText(featureCell(wb.featRows[id.Row], id.Col))
+			o.(*widget.Label).SetText(wb.featureCell(id.Row, id.Col))
 		})
 	wb.features.CreateHeader = func() fyne.CanvasObject { return widget.NewLabel("significance") }
 	wb.features.UpdateHeader = func(id widget.TableCellID, o fyne.CanvasObject) {
 		if id.Row < 0 {
-			o.(*widget.Label).SetText([]string{"minimum (µm)", "depth", "width (µm)", "significance (σ)"}[id.Col])
+			o.(*widget.Label).SetText([]string{"minimum (µm)", "depth", "width (µm)", "significance (σ)",
+				"model: elements (share)", "model: strongest lines (rest λ, τ)"}[id.Col])
 		} else {
 			o.(*widget.Label).SetText(strconv.Itoa(id.Row + 1))
 		}
 	}
-	for c, w := range []float32{130, 90, 110, 130} {
+	for c, w := range []float32{130, 90, 110, 130, 260, 640} {
 		wb.features.SetColumnWidth(c, w)
 	}
-	table := widget.NewCard("Features", "absorption minima of the observed spectrum", wb.features)
+	identify := widget.NewButton("Identify with the model", func() { wb.startIdentify() })
+	table := widget.NewCard("Features", "", container.NewBorder(
+		container.NewBorder(nil, nil, nil, identify, widget.NewLabel("absorption minima of the observed spectrum; which model elements and lines absorb there is a hypothesis (Help ▸ About the model)")),
+		nil, nil, nil, wb.features))
 
 	right := container.NewVSplit(plot, table)
 	right.Offset = 0.72
@@ -270,10 +278,22 @@ func (wb *workbench) updateFeatures() {
 		}
 	}
 	wb.featRows = keep
+	wb.featAttr = nil
 	wb.features.Refresh()
 }
 
-func featureCell(f spectra.Feature, col int) string {
+// featureCell is the text of the feature table's cell (row, col).
+func (wb *workbench) featureCell(row, col int) string {
+	f := wb.featRows[row]
+	if col >= 4 {
+		if wb.featAttr == nil {
+			return "(press Identify)"
+		}
+		if col == 4 {
+			return elementsText(wb.featAttr[row])
+		}
+		return linesText(wb.featAttr[row])
+	}
 	switch col {
 	case 0:
 		return fmt.Sprintf("%.4f", f.Wavelength/1e4)
@@ -352,6 +372,10 @@ func (wb *workbench) progressFunc(gen int) func(done, total int) {
 // goroutine, cancelling any computation still running.
 func (wb *workbench) recompute() {
 	ctx, gen := wb.begin(false, "computing…")
+	if wb.featAttr != nil { // made for another model
+		wb.featAttr = nil
+		wb.features.Refresh()
+	}
 	sess := *wb.sess // the goroutine works on a copy
 	go func() {
 		ov, err := wb.bench.compute(ctx, &sess)

@@ -17,6 +17,8 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"broadline/linelists"
+	"broadline/opacity/synth"
+	"broadline/spectra"
 )
 
 // The workbench's tools beyond the live model: the velocity sweep, the kept
@@ -293,4 +295,42 @@ func (wb *workbench) finishOpenDataset(gen int, b *bench, err error) {
 	if wb.jobDone != nil {
 		wb.jobDone(nw, nil)
 	}
+}
+
+// startIdentify attributes the shown epoch's features to the current
+// model's elements and lines off the UI goroutine (progress per feature,
+// Cancel) and fills the table's last two columns.
+func (wb *workbench) startIdentify() {
+	if len(wb.featRows) == 0 {
+		wb.status.SetText("no features to identify in this spectrum")
+		return
+	}
+	ctx, gen := wb.begin(true, "identifying the features with the model…")
+	sess := *wb.sess
+	feats := append([]spectra.Feature(nil), wb.featRows...)
+	go func() {
+		attr, err := wb.bench.identify(ctx, &sess, feats, wb.progressFunc(gen))
+		fyne.Do(func() { wb.finishIdentify(gen, &sess, attr, err) })
+	}()
+}
+
+func (wb *workbench) finishIdentify(gen int, s *Session, attr []*synth.Attribution, err error) {
+	if !wb.end(gen) {
+		return
+	}
+	defer func() {
+		if wb.jobDone != nil {
+			wb.jobDone(attr, err)
+		}
+	}()
+	if err != nil {
+		wb.showJobError(err)
+		return
+	}
+	if s.Epoch != wb.sess.Epoch || len(attr) != len(wb.featRows) {
+		return // the features changed meanwhile
+	}
+	wb.featAttr = attr
+	wb.features.Refresh()
+	wb.status.SetText(fmt.Sprintf("features identified with the model at v_ph = %.3f c, T = %.0f K (absorption-only shares; a hypothesis to check)", s.PhotosphereVelocity, s.Temperature))
 }
