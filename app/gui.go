@@ -204,7 +204,11 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 
 	wb.features = widget.NewTableWithHeaders(
 		func() (int, int) { return len(wb.featRows), 6 },
-		func() fyne.CanvasObject { return widget.NewLabel("0.000000 µm") },
+		func() fyne.CanvasObject {
+			l := widget.NewLabel("0.000000 µm")
+			l.Truncation = fyne.TextTruncateEllipsis
+			return l
+		},
 		func(id widget.TableCellID, o fyne.CanvasObject) {
 			o.(*widget.Label).SetText(wb.featureCell(id.Row, id.Col))
 		})
@@ -217,16 +221,17 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 			o.(*widget.Label).SetText(strconv.Itoa(id.Row + 1))
 		}
 	}
-	for c, w := range []float32{130, 90, 110, 130, 260, 640} {
+	for c, w := range []float32{130, 90, 110, 130, 330, 700} {
 		wb.features.SetColumnWidth(c, w)
 	}
 	identify := widget.NewButton("Identify with the model", func() { wb.startIdentify() })
+	note := widget.NewLabel("Absorption minima of the observed spectrum. Which model elements and lines absorb there is a hypothesis (Help ▸ About the model).")
+	note.Wrapping = fyne.TextWrapWord
 	table := widget.NewCard("Features", "", container.NewBorder(
-		container.NewBorder(nil, nil, nil, identify, widget.NewLabel("absorption minima of the observed spectrum; which model elements and lines absorb there is a hypothesis (Help ▸ About the model)")),
-		nil, nil, nil, wb.features))
+		container.NewBorder(nil, nil, nil, identify, note), nil, nil, nil, wb.features))
 
 	right := container.NewVSplit(plot, table)
-	right.Offset = 0.72
+	right.Offset = 0.64
 	split := container.NewHSplit(model, right)
 	split.Offset = 0.26
 	wb.win.SetContent(split)
