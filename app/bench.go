@@ -59,6 +59,12 @@ type overlay struct {
 // compute synthesises the session's model for its epoch and compares it
 // with the observed spectrum.
 func (b *bench) compute(ctx context.Context, s *Session) (*overlay, error) {
+	return b.computeWithout(ctx, s, 0)
+}
+
+// computeWithout is compute with the lines of element z removed (a
+// knock-out; z = 0 removes nothing). The plasma still has the element.
+func (b *bench) computeWithout(ctx context.Context, s *Session, z int) (*overlay, error) {
 	if err := s.Validate(b.data); err != nil {
 		return nil, err
 	}
@@ -74,7 +80,11 @@ func (b *bench) compute(ctx context.Context, s *Session) (*overlay, error) {
 	ej := sc.Ejecta(s.Epoch)
 	ej.BetaPh = s.PhotosphereVelocity
 	ej.Temperature = s.Temperature
-	res, err := m.Spectrum(ctx, comp, ej, synth.Settings{Preview: s.Preview, Workers: runtime.GOMAXPROCS(0)})
+	set := synth.Settings{Preview: s.Preview, Workers: runtime.GOMAXPROCS(0)}
+	if z > 0 {
+		set.Without = []int{z}
+	}
+	res, err := m.Spectrum(ctx, comp, ej, set)
 	if err != nil {
 		return nil, fmt.Errorf("synthesis: %w", err)
 	}

@@ -7,6 +7,7 @@ import (
 	"image"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"sync"
 
@@ -18,6 +19,7 @@ import (
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
+	"broadline/linelists"
 	"broadline/opacity/synth"
 	"broadline/spectra"
 )
@@ -78,6 +80,13 @@ type workbench struct {
 	jobDone func(any, error)
 	// compared is the last comparison shown, for its export.
 	compared *shownComparison
+	// without is the element (Z) whose knock-out the figure also shows,
+	// 0 for none; knockSel chooses it.
+	without  int
+	knockSel *widget.Select
+	// lastKnock is the knock-out overlay of the last computation (nil
+	// when none was asked for); tests read it.
+	lastKnock *overlay
 }
 
 // shownComparison is a comparison figure as the export dialog writes it.
@@ -200,7 +209,17 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 	wb.figure = canvas.NewImageFromImage(image.NewRGBA(image.Rect(0, 0, 1, 1)))
 	wb.figure.FillMode = canvas.ImageFillContain
 	wb.figure.SetMinSize(fyne.NewSize(640, 360))
-	plot := widget.NewCard("Spectrum", "", container.NewBorder(banner, nil, nil, nil, wb.figure))
+	knockOpts, knockZ := knockOutChoices(b)
+	wb.knockSel = widget.NewSelect(knockOpts, func(v string) {
+		z := knockZ[v]
+		if z != wb.without {
+			wb.without = z
+			wb.recompute()
+		}
+	})
+	wb.knockSel.SetSelectedIndex(0)
+	knockRow := container.NewBorder(nil, nil, widget.NewLabel("Also draw the model without the lines of"), nil, wb.knockSel)
+	plot := widget.NewCard("Spectrum", "", container.NewBorder(container.NewVBox(banner, knockRow), nil, nil, nil, wb.figure))
 
 	wb.features = widget.NewTableWithHeaders(
 		func() (int, int) { return len(wb.featRows), 6 },
@@ -382,23 +401,67 @@ func (wb *workbench) recompute() {
 		wb.features.Refresh()
 	}
 	sess := *wb.sess // the goroutine works on a copy
+	without := wb.without
 	go func() {
 		ov, err := wb.bench.compute(ctx, &sess)
+		var knock *overlay
+		if err == nil && without > 0 {
+			knock, err = wb.bench.computeWithout(ctx, &sess, without)
+		}
 		var img image.Image
 		if err == nil {
-			img, err = wb.draw(&sess, ov)
+			img, err = wb.draw(&sess, ov, knock, without)
 		}
-		fyne.Do(func() { wb.finish(gen, &sess, ov, img, err) })
+		fyne.Do(func() {
+			if err == nil {
+				wb.lastKnock = knock
+			}
+			wb.finish(gen, &sess, ov, img, err)
+		})
 	}()
 }
 
-// draw renders the figure for a finished computation (off the UI goroutine).
-func (wb *workbench) draw(s *Session, ov *overlay) (image.Image, error) {
+// knockOutChoices lists the elements that have lines in b's store, for the
+// knock-out selector: "nothing" first, then the symbols by Z, with each
+// choice's Z.
+func knockOutChoices(b *bench) ([]string, map[string]int) {
+	opts := []string{"nothing"}
+	zs := map[string]int{"nothing": 0}
+	seen := map[int]bool{}
+	var list []int
+	for _, sp := range b.store.SpeciesTable {
+		if z := int(sp.Z); !seen[z] {
+			seen[z] = true
+			list = append(list, z)
+		}
+	}
+	slices.Sort(list)
+	for _, z := range list {
+		e, err := linelists.ElementByZ(z)
+		if err != nil {
+			continue
+		}
+		opts = append(opts, e.Symbol)
+		zs[e.Symbol] = z
+	}
+	return opts, zs
+}
+
+// draw renders the figure for a finished computation (off the UI
+// goroutine), with the knock-out of element z when knock is not nil.
+func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (image.Image, error) {
 	obs := wb.bench.data.Observed[s.Epoch]
 	title := fmt.Sprintf("%s, %g d after explosion", wb.bench.data.Scenario.Object, wb.bench.data.Scenario.Epochs[s.Epoch].Days)
 	p, err := spectrumFigure(obs, ov, title)
 	if err != nil {
 		return nil, err
+	}
+	if knock != nil {
+		e, _ := linelists.ElementByZ(z)
+		st := candidateColors[1]
+		if err := addStyledSegments(p, knock.Wavelength, knock.Flux, st.c, 1.2, st.dash, "model without "+e.Symbol); err != nil {
+			return nil, err
+		}
 	}
 	return renderFigure(p, 1100, 560), nil
 }
