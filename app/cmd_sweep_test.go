@@ -1,6 +1,7 @@
 package main
 
 import (
+	"encoding/csv"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -97,5 +98,49 @@ func TestSweepCommandErrors(t *testing.T) {
 		if status != 2 || out != "" || !strings.Contains(errs, c.want) || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
 			t.Errorf("%s: status %d, stdout %q, stderr %q (want 2, nothing, one line naming %s)", name, status, out, errs, c.want)
 		}
+	}
+}
+
+// TestIdentifyCommand: the headless identification of the demo's first
+// epoch at its recorded parameters gives one CSV row per feature of
+// significance ≥ 5, as the workbench's table, and names Sr through its
+// Sr II lines at the 0.78-µm feature (see TestIdentifyDemo).
+func TestIdentifyCommand(t *testing.T) {
+	d, err := loadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	args := demoSweepArgs(t, 0, "--photosphere-velocity", fmt.Sprintf("%gc", d.Scenario.Epochs[0].PhotosphereVelocity))
+	args[0] = "identify"
+	var keep []string
+	for i := 0; i < len(args); i++ { // identify takes neither a distance nor a resolving power
+		if args[i] == "--distance-mpc" || args[i] == "--resolving-power" {
+			i++
+			continue
+		}
+		keep = append(keep, args[i])
+	}
+	status, out, errs := runCmd(keep...)
+	if status != 0 {
+		t.Fatalf("status %d: %s", status, errs)
+	}
+	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 3 || rows[0][0] != "minimum_um" || len(rows[0]) != 7 {
+		t.Fatalf("CSV %q", out)
+	}
+	if !strings.HasPrefix(rows[2][0], "0.784") {
+		t.Errorf("second feature at %s µm, want 0.784", rows[2][0])
+	}
+	if !strings.Contains(rows[2][5], "Sr ") || !strings.Contains(rows[2][6], "Sr II 10") {
+		t.Errorf("0.78-µm feature: elements %q, lines %q", rows[2][5], rows[2][6])
+	}
+	if !strings.Contains(errs, "hypothesis") {
+		t.Errorf("stderr lacks the caution: %q", errs)
+	}
+	if status, out, _ := runCmd("identify", "--lines", "x"); status != 2 || out != "" {
+		t.Errorf("identify without --spectrum: status %d, stdout %q", status, out)
 	}
 }
