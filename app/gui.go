@@ -70,9 +70,9 @@ type workbench struct {
 	// model that was shown when Identify was pressed; nil until then.
 	featAttr []*synth.Attribution
 
-	mu     sync.Mutex
-	cancel context.CancelFunc // of the running computation, if any
-	gen    int                // generation of the latest request
+	mu        sync.Mutex
+	modelSlot slot // the computation of the figure
+	toolSlot  slot // a sweep, comparison, identification or dataset load
 	// done, if set, is called on the UI goroutine after each computation
 	// finishes (tests wait on it); jobDone likewise after each sweep or
 	// comparison, with its result or error.
@@ -87,6 +87,21 @@ type workbench struct {
 	// lastKnock is the knock-out overlay of the last computation (nil
 	// when none was asked for); tests read it.
 	lastKnock *overlay
+	// attrFor is the model featAttr was made with.
+	attrFor modelKey
+}
+
+// modelKey is what an identification depends on.
+type modelKey struct {
+	Epoch       int
+	Velocity, T float64
+	Fractions   string
+	Preview     bool
+}
+
+// keyOf returns the model of session s.
+func keyOf(s *Session) modelKey {
+	return modelKey{s.Epoch, s.PhotosphereVelocity, s.Temperature, s.MassFractions, s.Preview}
 }
 
 // shownComparison is a comparison figure as the export dialog writes it.
@@ -330,27 +345,34 @@ func (wb *workbench) featureCell(row, col int) string {
 	}
 }
 
-// begin makes a new computation the workbench's current one, cancelling
-// any other still running, and shows that it runs: the indeterminate bar,
-// or the progress bar when counted is true. It returns the computation's
-// context and generation.
-func (wb *workbench) begin(counted bool, what string) (context.Context, int) {
+// slot is one kind of background computation: the model behind the
+// figure, or a tool (sweep, comparison, identification, opening a dataset).
+// A new computation cancels the running one of its own slot only, so a
+// tool never leaves the figure behind the session.
+type slot struct {
+	cancel context.CancelFunc // of the running computation, if any
+	gen    int                // generation of the latest request
+}
+
+// begin makes a new computation the current one of its slot (the tool slot
+// when tool is true, else the model's), cancelling the one it replaces,
+// and shows that it runs: the progress bar for a tool, the indeterminate
+// bar for the model. It returns the computation's context and generation.
+func (wb *workbench) begin(tool bool, what string) (context.Context, int) {
 	wb.mu.Lock()
-	if wb.cancel != nil {
-		wb.cancel()
+	sl := wb.slotOf(tool)
+	if sl.cancel != nil {
+		sl.cancel()
 	}
 	ctx, cancel := context.WithCancel(context.Background())
-	wb.cancel = cancel
-	wb.gen++
-	gen := wb.gen
+	sl.cancel = cancel
+	sl.gen++
+	gen := sl.gen
 	wb.mu.Unlock()
-	if counted {
-		wb.busy.Stop()
-		wb.busy.Hide()
+	if tool {
 		wb.progress.SetValue(0)
 		wb.progress.Show()
 	} else {
-		wb.progress.Hide()
 		wb.busy.Show()
 		wb.busy.Start()
 	}
@@ -359,31 +381,45 @@ func (wb *workbench) begin(counted bool, what string) (context.Context, int) {
 	return ctx, gen
 }
 
-// end reports whether computation gen is still the current one, and if so
-// clears the signs that it runs.
-func (wb *workbench) end(gen int) bool {
-	wb.mu.Lock()
-	latest := gen == wb.gen
-	if latest {
-		wb.cancel = nil
+func (wb *workbench) slotOf(tool bool) *slot {
+	if tool {
+		return &wb.toolSlot
 	}
+	return &wb.modelSlot
+}
+
+// end reports whether computation gen is still the current one of its
+// slot, and if so clears the signs that it runs.
+func (wb *workbench) end(tool bool, gen int) bool {
+	wb.mu.Lock()
+	sl := wb.slotOf(tool)
+	latest := gen == sl.gen
+	if latest {
+		sl.cancel = nil
+	}
+	idle := wb.modelSlot.cancel == nil && wb.toolSlot.cancel == nil
 	wb.mu.Unlock()
 	if latest {
-		wb.busy.Stop()
-		wb.busy.Hide()
-		wb.progress.Hide()
-		wb.cancelBtn.Hide()
+		if tool {
+			wb.progress.Hide()
+		} else {
+			wb.busy.Stop()
+			wb.busy.Hide()
+		}
+		if idle {
+			wb.cancelBtn.Hide()
+		}
 	}
 	return latest
 }
 
-// progressFunc returns a progress callback for computation gen that moves
-// the progress bar on the UI goroutine.
+// progressFunc returns a progress callback for tool computation gen that
+// moves the progress bar on the UI goroutine.
 func (wb *workbench) progressFunc(gen int) func(done, total int) {
 	return func(done, total int) {
 		fyne.Do(func() {
 			wb.mu.Lock()
-			latest := gen == wb.gen
+			latest := gen == wb.toolSlot.gen
 			wb.mu.Unlock()
 			if latest {
 				wb.progress.SetValue(float64(done) / float64(total))
@@ -396,8 +432,8 @@ func (wb *workbench) progressFunc(gen int) func(done, total int) {
 // goroutine, cancelling any computation still running.
 func (wb *workbench) recompute() {
 	ctx, gen := wb.begin(false, "computing…")
-	if wb.featAttr != nil { // made for another model
-		wb.featAttr = nil
+	if wb.featAttr != nil && wb.attrFor != keyOf(wb.sess) {
+		wb.featAttr = nil // made for another model
 		wb.features.Refresh()
 	}
 	sess := *wb.sess // the goroutine works on a copy
@@ -468,7 +504,7 @@ func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (image.Image, e
 
 // finish shows a computation's result, unless a newer one has been asked for.
 func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, err error) {
-	if !wb.end(gen) {
+	if !wb.end(false, gen) {
 		return
 	}
 	switch {
@@ -493,11 +529,13 @@ func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, e
 	}
 }
 
-// stop cancels the running computation.
+// stop cancels the running computations (model and tool).
 func (wb *workbench) stop() {
 	wb.mu.Lock()
-	if wb.cancel != nil {
-		wb.cancel()
+	for _, sl := range []*slot{&wb.modelSlot, &wb.toolSlot} {
+		if sl.cancel != nil {
+			sl.cancel()
+		}
 	}
 	wb.mu.Unlock()
 }

@@ -79,7 +79,7 @@ func (wb *workbench) startSweep(lo, hi float64, steps int) {
 
 // finishSweep shows a sweep's curve and offers its best velocity.
 func (wb *workbench) finishSweep(gen int, sw *velocitySweep, img image.Image, err error) {
-	if !wb.end(gen) {
+	if !wb.end(true, gen) {
 		return
 	}
 	defer func() {
@@ -200,7 +200,7 @@ func (wb *workbench) startComparison() {
 
 // finishComparison shows the comparison figure with the export controls.
 func (wb *workbench) finishComparison(gen int, shown *shownComparison, img image.Image, err error) {
-	if !wb.end(gen) {
+	if !wb.end(true, gen) {
 		return
 	}
 	defer func() {
@@ -261,6 +261,7 @@ func (wb *workbench) openDatasetDialog() {
 // Cancel; when it is read, the window shows it with a fresh session and
 // the current session is dropped (save it first to keep it).
 func (wb *workbench) startOpenDataset(path string) {
+	wb.stop()
 	ctx, gen := wb.begin(true, "reading the dataset "+path+"…")
 	go func() {
 		b, err := openDataset(ctx, path, func(p linelists.Progress) {
@@ -276,7 +277,7 @@ func (wb *workbench) startOpenDataset(path string) {
 
 // finishOpenDataset shows the dataset just read in this window.
 func (wb *workbench) finishOpenDataset(gen int, b *bench, err error) {
-	if !wb.end(gen) {
+	if !wb.end(true, gen) {
 		return
 	}
 	if err != nil {
@@ -315,7 +316,7 @@ func (wb *workbench) startIdentify() {
 }
 
 func (wb *workbench) finishIdentify(gen int, s *Session, attr []*synth.Attribution, err error) {
-	if !wb.end(gen) {
+	if !wb.end(true, gen) {
 		return
 	}
 	defer func() {
@@ -331,6 +332,7 @@ func (wb *workbench) finishIdentify(gen int, s *Session, attr []*synth.Attributi
 		return // the features changed meanwhile
 	}
 	wb.featAttr = attr
+	wb.attrFor = keyOf(s)
 	wb.features.Refresh()
 	wb.status.SetText(fmt.Sprintf("features identified with the model at v_ph = %.3f c, T = %.0f K (absorption-only shares; a hypothesis to check)", s.PhotosphereVelocity, s.Temperature))
 }

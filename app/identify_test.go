@@ -83,53 +83,33 @@ func TestWorkbenchIdentify(t *testing.T) {
 	if got := wb.featureCell(0, 5); !strings.Contains(got, "Å (τ") {
 		t.Errorf("lines cell %q", got)
 	}
+	waitDone(t, wb) // the same model again: the identification stays
+	if got := wb.featureCell(0, 4); !strings.Contains(got, "%") {
+		t.Errorf("after recomputing the same model: %q", got)
+	}
+	wb.temp.SetValue(wb.sess.Temperature + 500)
 	waitDone(t, wb)
 	if got := wb.featureCell(0, 4); got != "(press Identify)" {
-		t.Errorf("after a recomputation: %q", got)
+		t.Errorf("after changing the model: %q", got)
 	}
 }
 
-// TestWorkbenchKnockOut: choosing an element draws the model without its
-// lines as well. Without Sr the model fits the invented data (made with Sr)
-// worse, and at the 0.78-µm feature, which Sr II lines help make, it
-// absorbs less: its flux there is higher than the full model's.
-func TestWorkbenchKnockOut(t *testing.T) {
+// TestWorkbenchToolKeepsModel: a sweep started while the model is
+// computing runs beside it; the model's computation finishes (it is not
+// cancelled), so the figure shows the session's model.
+func TestWorkbenchToolKeepsModel(t *testing.T) {
 	a := test.NewTempApp(t)
 	b := demoBench(t)
 	wb := newWorkbench(a, b, newSession("demo", b.data))
 	defer wb.win.Close()
-	if got := wb.knockSel.Options; len(got) != 9 || got[0] != "nothing" || got[2] != "Sr" {
-		t.Errorf("knock-out choices %q, want nothing and the eight elements with demo lines by Z", got)
-	}
-	full := waitDone(t, wb)
-	if wb.lastKnock != nil {
-		t.Error("a knock-out was drawn before one was chosen")
-	}
-	wb.done = nil
-	ch := make(chan *overlay, 1)
-	wb.done = func(ov *overlay, err error) {
-		if err != nil {
-			t.Error(err)
-		}
-		ch <- ov
-	}
-	wb.knockSel.SetSelected("Sr")
-	<-ch
-	k := wb.lastKnock
-	if k == nil {
-		t.Fatal("no knock-out computed")
-	}
-	if k.Chi2/float64(k.N) < 2*full.Chi2/float64(full.N) {
-		t.Errorf("χ²/N without Sr %.2f, with it %.2f: want clearly worse", k.Chi2/float64(k.N), full.Chi2/float64(full.N))
-	}
-	var dk, df float64
-	for i, w := range full.Wavelength {
-		if math.Abs(w-7842) < 200 {
-			dk += k.Flux[i]
-			df += full.Flux[i]
-		}
-	}
-	if !(dk > 1.02*df) {
-		t.Errorf("at 0.78 µm the model without Sr has %.4g, with it %.4g: want less absorption without", dk, df)
+	ch := make(chan error, 8)
+	wb.done = func(_ *overlay, err error) { ch <- err }
+	wb.sess.Temperature = 5200
+	wb.syncControls()
+	wb.recompute()
+	v := wb.sess.PhotosphereVelocity
+	waitJob(t, wb, func() { wb.startSweep(v-0.02, v+0.02, 3) })
+	if err := <-ch; err != nil {
+		t.Errorf("the model's computation: %v", err)
 	}
 }
