@@ -18,6 +18,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/opacity/synth"
 )
 
 // Candidate is a model the analyst keeps to compare with others: a label
@@ -136,12 +137,21 @@ func (b *bench) comparisonFigure(cmp *comparison) (*plot.Plot, []string, error) 
 		if err := addStyledSegments(p, ov.Wavelength, ov.Flux, st.c, 1.4, st.dash, name); err != nil {
 			return nil, nil, err
 		}
-		caption = append(caption, fmt.Sprintf("%s: v_ph = %.3f c, T = %.0f K, mass fractions %s", c.Label, c.PhotosphereVelocity, c.Temperature, compositionText(c.MassFractions)))
+		caption = append(caption, modelCaption(c.Label, c.session(&Session{})))
 	}
-	caption = append(caption,
-		firstSentence(sc.Label),
-		"Model: LTE, Sobolev approximation, sharp photosphere, incomplete atomic data. A matched feature is a hypothesis to be checked with full radiative transfer.")
-	return p, caption, nil
+	return p, append(caption, captionTail(sc)...), nil
+}
+
+// captionTail is the end of every exported figure's caption: the dataset's
+// label (for the demo: that it is invented) and the model's cautions.
+func captionTail(sc *synth.Scenario) []string {
+	return []string{firstSentence(sc.Label),
+		"Model: LTE, Sobolev approximation, sharp photosphere, incomplete atomic data. A matched feature is a hypothesis to be checked with full radiative transfer."}
+}
+
+// modelCaption is the caption line of one model in a figure.
+func modelCaption(label string, s *Session) string {
+	return fmt.Sprintf("%s: v_ph = %.3f c, T = %.0f K, mass fractions %s", label, s.PhotosphereVelocity, s.Temperature, compositionText(s.MassFractions))
 }
 
 // compositionText is a composition as the figure's caption gives it: the

@@ -78,8 +78,9 @@ type workbench struct {
 	// comparison, with its result or error.
 	done    func(*overlay, error)
 	jobDone func(any, error)
-	// compared is the last comparison shown, for its export.
-	compared *shownComparison
+	// compared is the last comparison shown, current the figure shown in
+	// the window: each with its caption, for export.
+	compared, current *shownComparison
 	// without is the element (Z) whose knock-out the figure also shows,
 	// 0 for none; knockSel chooses it.
 	without  int
@@ -276,6 +277,7 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
 		),
 		fyne.NewMenu("Figure",
+			fyne.NewMenuItem("Export the shown figure…", func() { wb.exportDialog() }),
 			fyne.NewMenuItem("Compare candidates and export…", func() { wb.startComparison() }),
 		),
 		fyne.NewMenu("Help",
@@ -445,14 +447,20 @@ func (wb *workbench) recompute() {
 			knock, err = wb.bench.computeWithout(ctx, &sess, without)
 		}
 		var img image.Image
+		var shown *shownComparison
 		if err == nil {
-			img, err = wb.draw(&sess, ov, knock, without)
+			shown, err = wb.draw(&sess, ov, knock, without)
+		}
+		if err == nil {
+			img = renderFigure(shown.fig, 1100, 560)
 		}
 		fyne.Do(func() {
 			if err == nil {
 				wb.lastKnock = knock
 			}
-			wb.finish(gen, &sess, ov, img, err)
+			if wb.finish(gen, &sess, ov, img, err) && err == nil {
+				wb.current = shown
+			}
 		})
 	}()
 }
@@ -483,29 +491,34 @@ func knockOutChoices(b *bench) ([]string, map[string]int) {
 	return opts, zs
 }
 
-// draw renders the figure for a finished computation (off the UI
-// goroutine), with the knock-out of element z when knock is not nil.
-func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (image.Image, error) {
+// draw makes the figure for a finished computation (off the UI
+// goroutine), with the knock-out of element z when knock is not nil, and
+// its caption for export.
+func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*shownComparison, error) {
+	sc := wb.bench.data.Scenario
 	obs := wb.bench.data.Observed[s.Epoch]
-	title := fmt.Sprintf("%s, %g d after explosion", wb.bench.data.Scenario.Object, wb.bench.data.Scenario.Epochs[s.Epoch].Days)
+	title := fmt.Sprintf("%s, %g d after explosion", sc.Object, sc.Epochs[s.Epoch].Days)
 	p, err := spectrumFigure(obs, ov, title)
 	if err != nil {
 		return nil, err
 	}
+	caption := []string{modelCaption(fmt.Sprintf("model (χ²/N = %.2f)", ov.Chi2/float64(max(ov.N, 1))), s)}
 	if knock != nil {
 		e, _ := linelists.ElementByZ(z)
 		st := candidateColors[1]
 		if err := addStyledSegments(p, knock.Wavelength, knock.Flux, st.c, 1.2, st.dash, "model without "+e.Symbol); err != nil {
 			return nil, err
 		}
+		caption = append(caption, fmt.Sprintf("Dashed: the same model without the lines of %s (χ²/N = %.2f).", e.Symbol, knock.Chi2/float64(max(knock.N, 1))))
 	}
-	return renderFigure(p, 1100, 560), nil
+	return &shownComparison{fig: p, caption: append(caption, captionTail(sc)...)}, nil
 }
 
-// finish shows a computation's result, unless a newer one has been asked for.
-func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, err error) {
+// finish shows a computation's result, unless a newer one has been asked
+// for; it reports whether it did.
+func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, err error) bool {
 	if !wb.end(false, gen) {
-		return
+		return false
 	}
 	switch {
 	case errors.Is(err, context.Canceled):
@@ -527,6 +540,7 @@ func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, e
 	if wb.done != nil {
 		wb.done(ov, err)
 	}
+	return true
 }
 
 // stop cancels the running computations (model and tool).

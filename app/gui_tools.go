@@ -233,11 +233,42 @@ func (wb *workbench) exportComparison(path string) error {
 	if wb.compared == nil {
 		return fmt.Errorf("no comparison to export: Figure ▸ Compare candidates first")
 	}
-	if err := exportFigure(wb.compared.fig, wb.compared.caption, path, 10*vg.Inch, 6*vg.Inch); err != nil {
+	return wb.export(wb.compared, path)
+}
+
+// exportCurrent writes the figure the window shows to path (10 × 6 in).
+func (wb *workbench) exportCurrent(path string) error {
+	if wb.current == nil {
+		return fmt.Errorf("no figure to export yet: wait for the model")
+	}
+	return wb.export(wb.current, path)
+}
+
+func (wb *workbench) export(f *shownComparison, path string) error {
+	if err := exportFigure(f.fig, f.caption, path, 10*vg.Inch, 6*vg.Inch); err != nil {
 		return err
 	}
 	wb.status.SetText("figure written to " + path)
 	return nil
+}
+
+// exportDialog asks where to write the shown figure.
+func (wb *workbench) exportDialog() {
+	path := widget.NewEntry()
+	path.SetText(inWorkDir("figure.png"))
+	dialog.ShowForm("Export the shown figure", "Export", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("File", path),
+			widget.NewFormItem("", widget.NewLabel("PNG, SVG or PDF by the extension; the caption gives the model and its cautions.")),
+		},
+		func(ok bool) {
+			if !ok {
+				return
+			}
+			if err := wb.exportCurrent(path.Text); err != nil {
+				dialog.ShowError(err, wb.win)
+			}
+		}, wb.win)
 }
 
 // openDatasetDialog asks for a dataset file and opens it.

@@ -3,6 +3,8 @@ package main
 import (
 	"context"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -111,5 +113,64 @@ func TestWorkbenchToolKeepsModel(t *testing.T) {
 	waitJob(t, wb, func() { wb.startSweep(v-0.02, v+0.02, 3) })
 	if err := <-ch; err != nil {
 		t.Errorf("the model's computation: %v", err)
+	}
+}
+// TestWorkbenchKnockOut: choosing an element draws the model without its
+// lines as well. Without Sr the model fits the invented data (made with Sr)
+// worse, and at the 0.78-µm feature, which Sr II lines help make, it
+// absorbs less: its flux there is higher than the full model's.
+func TestWorkbenchKnockOut(t *testing.T) {
+	a := test.NewTempApp(t)
+	b := demoBench(t)
+	wb := newWorkbench(a, b, newSession("demo", b.data))
+	defer wb.win.Close()
+	if got := wb.knockSel.Options; len(got) != 9 || got[0] != "nothing" || got[2] != "Sr" {
+		t.Errorf("knock-out choices %q, want nothing and the eight elements with demo lines by Z", got)
+	}
+	full := waitDone(t, wb)
+	if wb.lastKnock != nil {
+		t.Error("a knock-out was drawn before one was chosen")
+	}
+	wb.done = nil
+	ch := make(chan *overlay, 1)
+	wb.done = func(ov *overlay, err error) {
+		if err != nil {
+			t.Error(err)
+		}
+		ch <- ov
+	}
+	wb.knockSel.SetSelected("Sr")
+	<-ch
+	k := wb.lastKnock
+	if k == nil {
+		t.Fatal("no knock-out computed")
+	}
+	if k.Chi2/float64(k.N) < 2*full.Chi2/float64(full.N) {
+		t.Errorf("χ²/N without Sr %.2f, with it %.2f: want clearly worse", k.Chi2/float64(k.N), full.Chi2/float64(full.N))
+	}
+	var dk, df float64
+	for i, w := range full.Wavelength {
+		if math.Abs(w-7842) < 200 {
+			dk += k.Flux[i]
+			df += full.Flux[i]
+		}
+	}
+	if !(dk > 1.02*df) {
+		t.Errorf("at 0.78 µm the model without Sr has %.4g, with it %.4g: want less absorption without", dk, df)
+	}
+	// Figure ▸ Export the shown figure writes what the window shows, with
+	// the caption naming the model, the knock-out and the cautions.
+	out := filepath.Join(t.TempDir(), "shown.svg")
+	if err := wb.exportCurrent(out); err != nil {
+		t.Fatal(err)
+	}
+	svg, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"model without Sr", "without the lines of Sr", "v_ph = 0.240 c", "hypothesis", "INVENTED"} {
+		if !strings.Contains(string(svg), want) {
+			t.Errorf("exported figure lacks %q", want)
+		}
 	}
 }
