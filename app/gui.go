@@ -80,7 +80,7 @@ type workbench struct {
 	jobDone func(any, error)
 	// compared is the last comparison shown, current the figure shown in
 	// the window: each with its caption, for export.
-	compared, current *shownComparison
+	compared, current *exportable
 	// without is the element (Z) whose knock-out the figure also shows,
 	// 0 for none; knockSel chooses it.
 	without  int
@@ -105,8 +105,8 @@ func keyOf(s *Session) modelKey {
 	return modelKey{s.Epoch, s.PhotosphereVelocity, s.Temperature, s.MassFractions, s.Preview}
 }
 
-// shownComparison is a comparison figure as the export dialog writes it.
-type shownComparison struct {
+// exportable is a comparison figure as the export dialog writes it.
+type exportable struct {
 	fig     *plot.Plot
 	caption []string
 }
@@ -447,7 +447,7 @@ func (wb *workbench) recompute() {
 			knock, err = wb.bench.computeWithout(ctx, &sess, without)
 		}
 		var img image.Image
-		var shown *shownComparison
+		var shown *exportable
 		if err == nil {
 			shown, err = wb.draw(&sess, ov, knock, without)
 		}
@@ -494,7 +494,7 @@ func knockOutChoices(b *bench) ([]string, map[string]int) {
 // draw makes the figure for a finished computation (off the UI
 // goroutine), with the knock-out of element z when knock is not nil, and
 // its caption for export.
-func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*shownComparison, error) {
+func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*exportable, error) {
 	sc := wb.bench.data.Scenario
 	obs := wb.bench.data.Observed[s.Epoch]
 	title := fmt.Sprintf("%s, %g d after explosion", sc.Object, sc.Epochs[s.Epoch].Days)
@@ -511,7 +511,7 @@ func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*shownComparis
 		}
 		caption = append(caption, fmt.Sprintf("Dashed: the same model without the lines of %s (χ²/N = %.2f).", e.Symbol, knock.Chi2/float64(max(knock.N, 1))))
 	}
-	return &shownComparison{fig: p, caption: append(caption, captionTail(sc)...)}, nil
+	return &exportable{fig: p, caption: append(caption, captionTail(sc)...)}, nil
 }
 
 // finish shows a computation's result, unless a newer one has been asked

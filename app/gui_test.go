@@ -212,7 +212,7 @@ func TestWorkbenchTools(t *testing.T) {
 	if wb.candList.Length() != 2 || !strings.HasPrefix(wb.candidateText(1), "B · 1.5 d") {
 		t.Errorf("list of %d, second %q", wb.candList.Length(), wb.candidateText(1))
 	}
-	shown := waitJob(t, wb, func() { wb.startComparison() }).(*shownComparison)
+	shown := waitJob(t, wb, func() { wb.startComparison() }).(*exportable)
 	if len(shown.caption) != 4 {
 		t.Errorf("caption %q", shown.caption)
 	}

@@ -184,11 +184,11 @@ func (wb *workbench) startComparison() {
 	sess := *wb.sess
 	sess.Candidates = append([]Candidate(nil), wb.sess.Candidates...)
 	go func() {
-		var shown *shownComparison
+		var shown *exportable
 		var img image.Image
 		cmp, err := wb.bench.compareCandidates(ctx, &sess, sess.Epoch, wb.progressFunc(gen))
 		if err == nil {
-			shown = &shownComparison{}
+			shown = &exportable{}
 			shown.fig, shown.caption, err = wb.bench.comparisonFigure(cmp)
 		}
 		if err == nil {
@@ -199,7 +199,7 @@ func (wb *workbench) startComparison() {
 }
 
 // finishComparison shows the comparison figure with the export controls.
-func (wb *workbench) finishComparison(gen int, shown *shownComparison, img image.Image, err error) {
+func (wb *workbench) finishComparison(gen int, shown *exportable, img image.Image, err error) {
 	if !wb.end(true, gen) {
 		return
 	}
@@ -244,7 +244,7 @@ func (wb *workbench) exportCurrent(path string) error {
 	return wb.export(wb.current, path)
 }
 
-func (wb *workbench) export(f *shownComparison, path string) error {
+func (wb *workbench) export(f *exportable, path string) error {
 	if err := exportFigure(f.fig, f.caption, path, 10*vg.Inch, 6*vg.Inch); err != nil {
 		return err
 	}
