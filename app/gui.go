@@ -105,7 +105,7 @@ func keyOf(s *Session) modelKey {
 	return modelKey{s.Epoch, s.PhotosphereVelocity, s.Temperature, s.MassFractions, s.Preview}
 }
 
-// exportable is a comparison figure as the export dialog writes it.
+// exportable is a figure with its caption, as the export writes it.
 type exportable struct {
 	fig     *plot.Plot
 	caption []string

@@ -22,8 +22,10 @@ import (
 )
 
 // The workbench's tools beyond the live model: the velocity sweep, the kept
-// candidates and the comparison figure with its export. As in gui.go, the
-// numbers come from the bench (sweep.go, compare.go).
+// candidates, the comparison figure and the export, the identification of
+// the features and opening a dataset. Each tool runs in the tool slot
+// (gui.go), beside the model's computation. As in gui.go, the numbers come
+// from the bench (sweep.go, compare.go, identify.go, dataset.go).
 
 // sweepDialog asks for the range and number of velocities of a sweep.
 func (wb *workbench) sweepDialog() {
@@ -58,7 +60,7 @@ func (wb *workbench) sweepDialog() {
 }
 
 // startSweep runs a velocity sweep off the UI goroutine with a progress
-// bar; Cancel (or any new computation) stops it.
+// bar; Cancel (or another tool) stops it.
 func (wb *workbench) startSweep(lo, hi float64, steps int) {
 	ctx, gen := wb.begin(true, fmt.Sprintf("sweeping %d velocities from %.3f to %.3f c…", steps, lo, hi))
 	sess := *wb.sess
