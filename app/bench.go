@@ -3,13 +3,13 @@ package main
 import (
 	"context"
 	"fmt"
-	"math"
 	"runtime"
 	"slices"
 	"sync"
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/opacity/fit"
 	"broadline/opacity/synth"
 	"broadline/spectra"
 )
@@ -44,17 +44,9 @@ func (b *bench) synthModel() (*synth.Model, error) {
 	return b.model, b.err
 }
 
-// overlay is a synthetic spectrum as the session's instrument would record
-// it, on the observed spectrum's wavelengths.
-type overlay struct {
-	Wavelength []float64 // vacuum Å (the observed samples inside the model's range)
-	Flux       []float64 // erg s⁻¹ cm⁻² Å⁻¹ at the dataset's distance
-	Preview    bool
-	// Chi2 is Σ((obs − model)/σ)² over unmasked samples, and N their number.
-	Chi2     float64
-	N        int
-	Warnings []string
-}
+// overlay is a model on the observed spectrum's samples with its χ² (see
+// fit.Overlay); the bench adds the line lists' warnings to its own.
+type overlay = fit.Overlay
 
 // compute synthesises the session's model for its epoch and compares it
 // with the observed spectrum.
@@ -89,45 +81,10 @@ func (b *bench) computeWithout(ctx context.Context, s *Session, z int) (*overlay
 		return nil, fmt.Errorf("synthesis: %w", err)
 	}
 	res.Flux = res.AtDistance(sc.DistanceMpc * spectra.Megaparsec)
-	ov, err := compareObserved(b.data.Observed[s.Epoch], res, sc.Instrument.ResolvingPower)
+	ov, err := fit.Compare(b.data.Observed[s.Epoch], res, sc.Instrument.ResolvingPower)
 	if err != nil {
 		return nil, err
 	}
 	ov.Warnings = append(slices.Clone(b.loadWarnings), res.Warnings...)
-	return ov, nil
-}
-
-// compareObserved puts the synthetic spectrum res (flux already at the
-// observer) on the observed spectrum's wavelengths inside the model's range,
-// smoothed to resolving power R, and sums χ² over the unmasked samples that
-// have an uncertainty.
-func compareObserved(obs *spectra.Spectrum, res *synth.Result, R float64) (*overlay, error) {
-	lo, hi := res.Wavelength[0], res.Wavelength[len(res.Wavelength)-1]
-	var idx []int
-	var grid []float64
-	for i, w := range obs.Wavelength {
-		if w >= lo && w <= hi {
-			idx = append(idx, i)
-			grid = append(grid, w)
-		}
-	}
-	if len(grid) == 0 {
-		return nil, fmt.Errorf("the observed spectrum lies outside the model's range")
-	}
-	flux, _, err := res.Observe(R, grid)
-	if err != nil {
-		return nil, err
-	}
-	ov := &overlay{Wavelength: grid, Flux: flux, Preview: res.Preview}
-	for k, i := range idx {
-		if obs.Masked(i) || obs.Uncertainty == nil || !(obs.Uncertainty[i] > 0) {
-			continue
-		}
-		r := (obs.Flux[i] - flux[k]) / obs.Uncertainty[i]
-		if !math.IsNaN(r) {
-			ov.Chi2 += r * r
-			ov.N++
-		}
-	}
 	return ov, nil
 }

@@ -10,6 +10,7 @@ import (
 	"os/signal"
 	"strconv"
 
+	"broadline/opacity/fit"
 	"broadline/spectra"
 )
 
@@ -54,8 +55,8 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 		return usagef("--from-velocity %gc --to-velocity %gc: want 0 < from < to", lo.beta, hi.beta)
 	case f.vout.set && hi.beta >= f.vout.beta:
 		return usagef("--to-velocity %gc: must lie below --outer-velocity %gc", hi.beta, f.vout.beta)
-	case *steps < 3 || *steps > maxSweepSteps:
-		return usagef("--steps %d: want 3–%d", *steps, maxSweepSteps)
+	case *steps < 3 || *steps > fit.MaxSweepSteps:
+		return usagef("--steps %d: want 3–%d", *steps, fit.MaxSweepSteps)
 	case !(*f.dist > 0):
 		return usagef("--distance-mpc is required: the observed flux is compared with the model's at that distance")
 	}
@@ -75,7 +76,7 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 	defer stop()
 	var warnings []string
 	var n int
-	sw, err := sweep(ctx, lo.beta, hi.beta, *steps, func(ctx context.Context, v float64) (float64, error) {
+	sw, err := fit.Sweep(ctx, lo.beta, hi.beta, *steps, func(ctx context.Context, v float64) (float64, error) {
 		ej := su.ejecta
 		ej.BetaPh = v
 		res, err := su.model.Spectrum(ctx, su.comp, ej, su.settings)
@@ -83,7 +84,7 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 			return 0, err
 		}
 		res.Flux = res.AtDistance(*f.dist * spectra.Megaparsec)
-		ov, err := compareObserved(obs, res, *f.rp)
+		ov, err := fit.Compare(obs, res, *f.rp)
 		if err != nil {
 			return 0, err
 		}

@@ -115,6 +115,7 @@ func TestWorkbenchToolKeepsModel(t *testing.T) {
 		t.Errorf("the model's computation: %v", err)
 	}
 }
+
 // TestWorkbenchKnockOut: choosing an element draws the model without its
 // lines as well. Without Sr the model fits the invented data (made with Sr)
 // worse, and at the 0.78-µm feature, which Sr II lines help make, it

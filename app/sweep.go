@@ -3,32 +3,16 @@ package main
 import (
 	"context"
 	"fmt"
+
+	"broadline/opacity/fit"
 )
 
-// velocitySweep is the fit of one epoch's model against the photosphere
-// velocity, with the temperature and composition held at the session's.
+// velocitySweep is a fit.VelocitySweep of one epoch of the session.
 type velocitySweep struct {
-	Epoch    int
-	Velocity []float64 // v_ph / c, ascending, evenly spaced
-	Chi2N    []float64 // χ²/N of the model at each velocity
-	// Best is the velocity of least χ²/N and BestChi2N its value: the
-	// lowest grid point refined by a golden-section search between its two
-	// neighbours (Press et al., Numerical Recipes, §10.2; refineEvals more
-	// syntheses). AtEdge says the lowest grid value is at an end of the
-	// range, so the minimum may lie outside it; Best is then that end,
-	// unrefined.
-	Best, BestChi2N float64
-	AtEdge          bool
-	Preview         bool
+	fit.VelocitySweep
+	Epoch   int
+	Preview bool
 }
-
-// refineEvals is the number of syntheses of the golden-section refinement:
-// the bracket starts two grid steps wide and ends 0.618⁹ ≈ 0.013 of that
-// (for a 0.01 c grid, 2.6e-4 c or ~80 km/s).
-const refineEvals = 10
-
-// maxSweepSteps bounds the velocities of one sweep.
-const maxSweepSteps = 400
 
 // sweepVelocity synthesises the session's model at steps velocities evenly
 // spaced from lo to hi (v/c) and compares each with the observed spectrum.
@@ -43,7 +27,7 @@ func (b *bench) sweepVelocity(ctx context.Context, s *Session, lo, hi float64, s
 		return nil, err
 	}
 	at := *s
-	sw, err := sweep(ctx, lo, hi, steps, func(ctx context.Context, v float64) (float64, error) {
+	fs, err := fit.Sweep(ctx, lo, hi, steps, func(ctx context.Context, v float64) (float64, error) {
 		at.PhotosphereVelocity = v
 		ov, err := b.compute(ctx, &at)
 		if err != nil {
@@ -57,96 +41,5 @@ func (b *bench) sweepVelocity(ctx context.Context, s *Session, lo, hi float64, s
 	if err != nil {
 		return nil, err
 	}
-	sw.Epoch, sw.Preview = s.Epoch, s.Preview
-	return sw, nil
-}
-
-// sweep evaluates chi2n (χ²/N of the model at photosphere velocity v/c) at
-// steps velocities evenly spaced from lo to hi, then refines the lowest by
-// a golden-section search between its neighbours (refineEvals more
-// evaluations, none when the lowest is at an end). progress, when not nil,
-// is called after each evaluation. It stops when ctx is done (an error
-// wrapping ctx.Err()).
-func sweep(ctx context.Context, lo, hi float64, steps int, chi2n func(context.Context, float64) (float64, error), progress func(done, total int)) (*velocitySweep, error) {
-	switch {
-	case !(lo > 0) || !(hi > lo) || hi >= 1:
-		return nil, fmt.Errorf("velocity sweep: range %g–%g c must satisfy 0 < from < to < 1", lo, hi)
-	case steps < 3 || steps > maxSweepSteps:
-		return nil, fmt.Errorf("velocity sweep: %d steps (want 3–%d)", steps, maxSweepSteps)
-	}
-	sw := &velocitySweep{Velocity: make([]float64, steps), Chi2N: make([]float64, steps)}
-	h := (hi - lo) / float64(steps-1)
-	total := steps + refineEvals
-	done := 0
-	eval := func(v float64) (float64, error) {
-		if err := ctx.Err(); err != nil {
-			return 0, fmt.Errorf("velocity sweep: %w", err)
-		}
-		x, err := chi2n(ctx, v)
-		if err != nil {
-			return 0, fmt.Errorf("velocity sweep at %.4g c: %w", v, err)
-		}
-		done++
-		if progress != nil {
-			progress(done, total)
-		}
-		return x, nil
-	}
-	best := 0
-	for i := range steps {
-		v := lo + float64(i)*h
-		x, err := eval(v)
-		if err != nil {
-			return nil, err
-		}
-		sw.Velocity[i], sw.Chi2N[i] = v, x
-		if x < sw.Chi2N[best] {
-			best = i
-		}
-	}
-	sw.Best, sw.BestChi2N = sw.Velocity[best], sw.Chi2N[best]
-	if best == 0 || best == steps-1 {
-		sw.AtEdge = true
-		if progress != nil {
-			progress(total, total)
-		}
-		return sw, nil
-	}
-	// Golden-section search in [v_best−h, v_best+h].
-	const g = 0.6180339887498949 // (√5 − 1)/2
-	a, c := sw.Velocity[best-1], sw.Velocity[best+1]
-	x1, x2 := c-g*(c-a), a+g*(c-a)
-	f1, err := eval(x1)
-	if err != nil {
-		return nil, err
-	}
-	f2, err := eval(x2)
-	if err != nil {
-		return nil, err
-	}
-	consider := func(v, f float64) {
-		if f < sw.BestChi2N {
-			sw.Best, sw.BestChi2N = v, f
-		}
-	}
-	consider(x1, f1)
-	consider(x2, f2)
-	for range refineEvals - 2 {
-		if f1 < f2 {
-			c, x2, f2 = x2, x1, f1
-			x1 = c - g*(c-a)
-			if f1, err = eval(x1); err != nil {
-				return nil, err
-			}
-			consider(x1, f1)
-		} else {
-			a, x1, f1 = x1, x2, f2
-			x2 = a + g*(c-a)
-			if f2, err = eval(x2); err != nil {
-				return nil, err
-			}
-			consider(x2, f2)
-		}
-	}
-	return sw, nil
+	return &velocitySweep{VelocitySweep: *fs, Epoch: s.Epoch, Preview: s.Preview}, nil
 }

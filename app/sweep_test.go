@@ -5,6 +5,8 @@ import (
 	"errors"
 	"math"
 	"testing"
+
+	"broadline/opacity/fit"
 )
 
 // TestSweepRecoversVelocity is an injection–recovery check: the demo
@@ -22,16 +24,16 @@ func TestSweepRecoversVelocity(t *testing.T) {
 		truth := s.PhotosphereVelocity
 		var calls []int
 		sw, err := b.sweepVelocity(context.Background(), s, truth-0.06, truth+0.06, 7, func(done, total int) {
-			if total != 7+refineEvals {
-				t.Errorf("progress total %d, want %d", total, 7+refineEvals)
+			if total != 7+fit.RefineEvals {
+				t.Errorf("progress total %d, want %d", total, 7+fit.RefineEvals)
 			}
 			calls = append(calls, done)
 		})
 		if err != nil {
 			t.Fatal(err)
 		}
-		if len(calls) != 7+refineEvals || calls[0] != 1 || calls[len(calls)-1] != 7+refineEvals {
-			t.Errorf("progress calls %v, want 1…%d", calls, 7+refineEvals)
+		if len(calls) != 7+fit.RefineEvals || calls[0] != 1 || calls[len(calls)-1] != 7+fit.RefineEvals {
+			t.Errorf("progress calls %v, want 1…%d", calls, 7+fit.RefineEvals)
 		}
 		t.Logf("epoch %d: recorded %.4f c, sweep best %.4f c, χ²/N %.3g", epoch, truth, sw.Best, sw.Chi2N)
 		if sw.AtEdge || math.Abs(sw.Best-truth) > 0.002 {
@@ -50,7 +52,7 @@ func TestSweepErrorsAndCancel(t *testing.T) {
 	for _, c := range []struct {
 		lo, hi float64
 		n      int
-	}{{0, 0.2, 5}, {0.2, 0.1, 5}, {0.1, outer, 5}, {0.1, 0.2, 2}, {0.1, 0.2, maxSweepSteps + 1}} {
+	}{{0, 0.2, 5}, {0.2, 0.1, 5}, {0.1, outer, 5}, {0.1, 0.2, 2}, {0.1, 0.2, fit.MaxSweepSteps + 1}} {
 		if _, err := b.sweepVelocity(context.Background(), s, c.lo, c.hi, c.n, nil); err == nil {
 			t.Errorf("sweep %v–%v in %d steps: no error", c.lo, c.hi, c.n)
 		}
@@ -63,38 +65,5 @@ func TestSweepErrorsAndCancel(t *testing.T) {
 	})
 	if !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled sweep: %v", err)
-	}
-}
-
-// TestSweepSearch holds the grid-and-golden-section search to functions
-// whose minimum is known: a parabola with its vertex between grid points is
-// found to 3e-4 of its position, with refineEvals evaluations after the
-// grid; a function falling across the whole range is flagged at the edge
-// and not refined.
-func TestSweepSearch(t *testing.T) {
-	calls := 0
-	bowl := func(_ context.Context, v float64) (float64, error) {
-		calls++
-		return 1 + 1e4*(v-0.2371)*(v-0.2371), nil
-	}
-	sw, err := sweep(context.Background(), 0.1, 0.3, 11, bowl, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if sw.AtEdge || math.Abs(sw.Best-0.2371) > 3e-4 || calls != 11+refineEvals || sw.BestChi2N > 1.001 {
-		t.Errorf("best %.5f (want 0.2371), χ²/N %.5f, %d calls, at edge %v", sw.Best, sw.BestChi2N, calls, sw.AtEdge)
-	}
-	calls = 0
-	slope := func(_ context.Context, v float64) (float64, error) { calls++; return 10 - v, nil }
-	sw, err = sweep(context.Background(), 0.1, 0.3, 5, slope, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !sw.AtEdge || sw.Best != 0.3 || calls != 5 {
-		t.Errorf("falling: best %v at edge %v after %d calls, want 0.3, true, 5", sw.Best, sw.AtEdge, calls)
-	}
-	boom := errors.New("boom")
-	if _, err := sweep(context.Background(), 0.1, 0.3, 5, func(context.Context, float64) (float64, error) { return 0, boom }, nil); !errors.Is(err, boom) {
-		t.Errorf("an evaluation's error was not passed on: %v", err)
 	}
 }
