@@ -372,6 +372,7 @@ func gatherLevels(dst []float64, lower []uint32, lev []float64) {
 // 4·⌊len(wl)/4⌋ lines into dst with the widest vector loop the processor
 // has (vecLanes must be > 0).
 func linesVec(dst, wl, gf, lv []float64, hck float64) {
+	dst, gf, lv = dst[:len(wl)], gf[:len(wl)], lv[:len(wl)] // the kernels trust these lengths
 	n8 := 0
 	if vecLanes == 8 {
 		n8 = len(wl) &^ 7
@@ -417,6 +418,7 @@ func fusedDepths(dst, wl, gf []float64, lower []uint32, lev []float64, hck float
 // escapesVec writes λ(1 − e^{−τ}) of the first 4·⌊len(wl)/4⌋ lines into dst
 // with the widest vector loop the processor has (vecLanes must be > 0).
 func escapesVec(dst, tau, wl []float64) {
+	dst, tau = dst[:len(wl)], tau[:len(wl)] // the kernels trust these lengths
 	n8 := 0
 	if vecLanes == 8 {
 		n8 = len(wl) &^ 7
