@@ -118,11 +118,11 @@ func (b *bench) compareCandidates(ctx context.Context, s *Session, epoch int, pr
 // candidates' models, and the caption lines that go under it: one per
 // candidate with its parameters and composition, the dataset's label, and
 // the model's cautions.
-func (b *bench) comparisonFigure(cmp *comparison) (*plot.Plot, []string, error) {
+func (b *bench) comparisonFigure(cmp *comparison, u waveUnit) (*plot.Plot, []string, error) {
 	sc := b.data.Scenario
 	obs := b.data.Observed[cmp.Epoch]
 	title := fmt.Sprintf("%s, %g d after explosion: candidate compositions", sc.Object, sc.Epochs[cmp.Epoch].Days)
-	p, err := spectrumFigure(obs, nil, title)
+	p, err := spectrumFigure(obs, nil, title, u)
 	if err != nil {
 		return nil, nil, err
 	}
@@ -134,7 +134,7 @@ func (b *bench) comparisonFigure(cmp *comparison) (*plot.Plot, []string, error) 
 		if ov.Preview {
 			name += ", preview"
 		}
-		if err := addStyledSegments(p, ov.Wavelength, ov.Flux, st.c, 1.4, st.dash, name); err != nil {
+		if err := addStyledSegments(p, ov.Wavelength, ov.Flux, u, st.c, 1.4, st.dash, name); err != nil {
 			return nil, nil, err
 		}
 		caption = append(caption, modelCaption(c.Label, c.session(&Session{})))

@@ -54,7 +54,7 @@ func TestCompareAndExport(t *testing.T) {
 		t.Errorf("χ²/N recorded composition %.3f, without Sr %.3f: want ~1 and clearly worse", good, bad)
 	}
 
-	p, caption, err := b.comparisonFigure(cmp)
+	p, caption, err := b.comparisonFigure(cmp, unitOf(""))
 	if err != nil {
 		t.Fatal(err)
 	}

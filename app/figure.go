@@ -26,14 +26,38 @@ var palette = struct {
 	Masked:   color.NRGBA{86, 180, 233, 70}, // sky blue, translucent
 }
 
+// waveUnit is a unit for showing wavelengths: its name, the factor from Å,
+// and the decimals that keep 1 Å visible at 1 µm.
+type waveUnit struct {
+	Name     string
+	PerA     float64 // value in this unit of 1 Å
+	Decimals int
+}
+
+// The wavelength units the workbench offers; µm is the default (the field's
+// usual unit for 0.4–2.5 µm spectra). Their keys are what sessions save.
+var waveUnits = map[string]waveUnit{
+	"um": {"µm", 1e-4, 4},
+	"nm": {"nm", 0.1, 1},
+	"A":  {"Å", 1, 0},
+}
+
+// unitOf returns the unit saved as key ("" or unknown: µm).
+func unitOf(key string) waveUnit {
+	if u, ok := waveUnits[key]; ok {
+		return u
+	}
+	return waveUnits["um"]
+}
+
 // spectrumFigure builds the comparison plot of an observed spectrum and an
-// optional model overlay, wavelength in µm (vacuum). Masked samples are
+// optional model overlay, vacuum wavelength in unit u. Masked samples are
 // drawn under a shaded band; gaps in the data (removed ranges) stay gaps.
-func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plot, error) {
+func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string, u waveUnit) (*plot.Plot, error) {
 	p := plot.New()
 	p.Title.Text = title
 	p.Title.Padding = vg.Points(4)
-	p.X.Label.Text = "vacuum wavelength (µm)"
+	p.X.Label.Text = "vacuum wavelength (" + u.Name + ")"
 	p.Y.Label.Text = "flux (erg/s/cm²/Å)"
 	p.Add(plotter.NewGrid())
 
@@ -57,8 +81,8 @@ func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plo
 			j++
 		}
 		band, err := plotter.NewPolygon(plotter.XYs{
-			{X: obs.Wavelength[i] / 1e4, Y: 0}, {X: obs.Wavelength[j] / 1e4, Y: 0},
-			{X: obs.Wavelength[j] / 1e4, Y: 1.15 * ymax}, {X: obs.Wavelength[i] / 1e4, Y: 1.15 * ymax},
+			{X: obs.Wavelength[i] * u.PerA, Y: 0}, {X: obs.Wavelength[j] * u.PerA, Y: 0},
+			{X: obs.Wavelength[j] * u.PerA, Y: 1.15 * ymax}, {X: obs.Wavelength[i] * u.PerA, Y: 1.15 * ymax},
 		})
 		if err != nil {
 			return nil, fmt.Errorf("figure: %w", err)
@@ -69,7 +93,7 @@ func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plo
 		i = j + 1
 	}
 
-	if err := addSegments(p, obs.Wavelength, obs.Flux, palette.Observed, 1, "observed"); err != nil {
+	if err := addSegments(p, obs.Wavelength, obs.Flux, u, palette.Observed, 1, "observed"); err != nil {
 		return nil, err
 	}
 	if ov != nil {
@@ -77,7 +101,7 @@ func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plo
 		if ov.Preview {
 			name = "model (absorption-only preview)"
 		}
-		if err := addSegments(p, ov.Wavelength, ov.Flux, palette.Model, 1.6, name); err != nil {
+		if err := addSegments(p, ov.Wavelength, ov.Flux, u, palette.Model, 1.6, name); err != nil {
 			return nil, err
 		}
 	}
@@ -87,14 +111,14 @@ func spectrumFigure(obs *spectra.Spectrum, ov *overlay, title string) (*plot.Plo
 	return p, nil
 }
 
-// addSegments draws x (Å), y as solid lines (x in µm), one per segment.
-func addSegments(p *plot.Plot, x, y []float64, c color.Color, width vg.Length, name string) error {
-	return addStyledSegments(p, x, y, c, width, nil, name)
+// addSegments draws x (Å), y as solid lines (x in unit u), one per segment.
+func addSegments(p *plot.Plot, x, y []float64, u waveUnit, c color.Color, width vg.Length, name string) error {
+	return addStyledSegments(p, x, y, u, c, width, nil, name)
 }
 
 // addStyledSegments is addSegments with a dash pattern (nil: solid).
-func addStyledSegments(p *plot.Plot, x, y []float64, c color.Color, width vg.Length, dashes []vg.Length, name string) error {
-	for k, seg := range segments(x, y) {
+func addStyledSegments(p *plot.Plot, x, y []float64, u waveUnit, c color.Color, width vg.Length, dashes []vg.Length, name string) error {
+	for k, seg := range segments(x, y, u) {
 		l, err := plotter.NewLine(seg)
 		if err != nil {
 			return fmt.Errorf("figure: %w", err)
@@ -110,10 +134,10 @@ func addStyledSegments(p *plot.Plot, x, y []float64, c color.Color, width vg.Len
 	return nil
 }
 
-// segments splits x (Å), y into runs of points (x in µm) broken where the
+// segments splits x (Å), y into runs of points (x in unit u) broken where the
 // sampling step jumps by more than five times its median (a removed range)
 // or y is not finite. Runs of fewer than two points are left out.
-func segments(x, y []float64) []plotter.XYs {
+func segments(x, y []float64, u waveUnit) []plotter.XYs {
 	if len(x) != len(y) {
 		panic("broadline: segments: lengths differ")
 	}
@@ -132,7 +156,7 @@ func segments(x, y []float64) []plotter.XYs {
 			flush()
 		}
 		if !bad {
-			seg = append(seg, plotter.XY{X: x[i] / 1e4, Y: y[i]})
+			seg = append(seg, plotter.XY{X: x[i] * u.PerA, Y: y[i]})
 		}
 	}
 	flush()

@@ -85,6 +85,7 @@ type workbench struct {
 	// 0 for none; knockSel chooses it.
 	without  int
 	knockSel *widget.Select
+	unitSel  *widget.Select // wavelength unit of the figure and the table
 	// lastKnock is the knock-out overlay of the last computation (nil
 	// when none was asked for); tests read it.
 	lastKnock *overlay
@@ -234,7 +235,23 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 		}
 	})
 	wb.knockSel.SetSelectedIndex(0)
-	knockRow := container.NewBorder(nil, nil, widget.NewLabel("Also draw the model without the lines of"), nil, wb.knockSel)
+	unitKeys := []string{"um", "nm", "A"}
+	var unitNames []string
+	for _, k := range unitKeys {
+		unitNames = append(unitNames, waveUnits[k].Name)
+	}
+	wb.unitSel = widget.NewSelect(unitNames, func(v string) {
+		for _, k := range unitKeys {
+			if waveUnits[k].Name == v && unitOf(wb.sess.WavelengthUnit) != waveUnits[k] {
+				wb.sess.WavelengthUnit = k
+				wb.features.Refresh()
+				wb.recompute()
+			}
+		}
+	})
+	wb.unitSel.SetSelected(unitOf(s.WavelengthUnit).Name)
+	knockRow := container.NewBorder(nil, nil, widget.NewLabel("Also draw the model without the lines of"),
+		container.NewHBox(widget.NewLabel("wavelengths in"), wb.unitSel), wb.knockSel)
 	plot := widget.NewCard("Spectrum", "", container.NewBorder(container.NewVBox(banner, knockRow), nil, nil, nil, wb.figure))
 
 	wb.features = widget.NewTableWithHeaders(
@@ -250,7 +267,8 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 	wb.features.CreateHeader = func() fyne.CanvasObject { return widget.NewLabel("significance") }
 	wb.features.UpdateHeader = func(id widget.TableCellID, o fyne.CanvasObject) {
 		if id.Row < 0 {
-			o.(*widget.Label).SetText([]string{"minimum (µm)", "depth", "width (µm)", "significance (σ)",
+			u := unitOf(wb.sess.WavelengthUnit).Name
+			o.(*widget.Label).SetText([]string{"minimum (" + u + ")", "depth", "width (" + u + ")", "significance (σ)",
 				"model: elements (share)", "model: strongest lines (rest λ, τ)"}[id.Col])
 		} else {
 			o.(*widget.Label).SetText(strconv.Itoa(id.Row + 1))
@@ -296,6 +314,7 @@ func (wb *workbench) syncControls() {
 	wb.temp.SetValue(wb.sess.Temperature)
 	wb.fractions.SetText(wb.sess.MassFractions)
 	wb.preview.SetChecked(wb.sess.Preview)
+	wb.unitSel.SetSelected(unitOf(wb.sess.WavelengthUnit).Name)
 	wb.showValues()
 }
 
@@ -337,11 +356,13 @@ func (wb *workbench) featureCell(row, col int) string {
 	}
 	switch col {
 	case 0:
-		return fmt.Sprintf("%.4f", f.Wavelength/1e4)
+		u := unitOf(wb.sess.WavelengthUnit)
+		return strconv.FormatFloat(f.Wavelength*u.PerA, 'f', u.Decimals, 64)
 	case 1:
 		return fmt.Sprintf("%.3f", f.Depth)
 	case 2:
-		return fmt.Sprintf("%.4f", f.Width/1e4)
+		u := unitOf(wb.sess.WavelengthUnit)
+		return strconv.FormatFloat(f.Width*u.PerA, 'f', u.Decimals, 64)
 	default:
 		return fmt.Sprintf("%.1f", f.Significance)
 	}
@@ -454,14 +475,7 @@ func (wb *workbench) recompute() {
 		if err == nil {
 			img = renderFigure(shown.fig, 1100, 560)
 		}
-		fyne.Do(func() {
-			if err == nil {
-				wb.lastKnock = knock
-			}
-			if wb.finish(gen, &sess, ov, img, err) && err == nil {
-				wb.current = shown
-			}
-		})
+		fyne.Do(func() { wb.finish(gen, &sess, ov, knock, shown, img, err) })
 	}()
 }
 
@@ -498,7 +512,8 @@ func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*exportable, e
 	sc := wb.bench.data.Scenario
 	obs := wb.bench.data.Observed[s.Epoch]
 	title := fmt.Sprintf("%s, %g d after explosion", sc.Object, sc.Epochs[s.Epoch].Days)
-	p, err := spectrumFigure(obs, ov, title)
+	u := unitOf(s.WavelengthUnit)
+	p, err := spectrumFigure(obs, ov, title, u)
 	if err != nil {
 		return nil, err
 	}
@@ -506,7 +521,7 @@ func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*exportable, e
 	if knock != nil {
 		e, _ := linelists.ElementByZ(z)
 		st := candidateColors[1]
-		if err := addStyledSegments(p, knock.Wavelength, knock.Flux, st.c, 1.2, st.dash, "model without "+e.Symbol); err != nil {
+		if err := addStyledSegments(p, knock.Wavelength, knock.Flux, u, st.c, 1.2, st.dash, "model without "+e.Symbol); err != nil {
 			return nil, err
 		}
 		caption = append(caption, fmt.Sprintf("Dashed: the same model without the lines of %s (χ²/N = %.2f).", e.Symbol, knock.Chi2/float64(max(knock.N, 1))))
@@ -515,10 +530,13 @@ func (wb *workbench) draw(s *Session, ov, knock *overlay, z int) (*exportable, e
 }
 
 // finish shows a computation's result, unless a newer one has been asked
-// for; it reports whether it did.
-func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, err error) bool {
+// for.
+func (wb *workbench) finish(gen int, s *Session, ov, knock *overlay, shown *exportable, img image.Image, err error) {
 	if !wb.end(false, gen) {
-		return false
+		return
+	}
+	if err == nil {
+		wb.current, wb.lastKnock = shown, knock
 	}
 	switch {
 	case errors.Is(err, context.Canceled):
@@ -540,7 +558,6 @@ func (wb *workbench) finish(gen int, s *Session, ov *overlay, img image.Image, e
 	if wb.done != nil {
 		wb.done(ov, err)
 	}
-	return true
 }
 
 // stop cancels the running computations (model and tool).

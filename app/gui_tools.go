@@ -191,7 +191,7 @@ func (wb *workbench) startComparison() {
 		cmp, err := wb.bench.compareCandidates(ctx, &sess, sess.Epoch, wb.progressFunc(gen))
 		if err == nil {
 			shown = &exportable{}
-			shown.fig, shown.caption, err = wb.bench.comparisonFigure(cmp)
+			shown.fig, shown.caption, err = wb.bench.comparisonFigure(cmp, unitOf(sess.WavelengthUnit))
 		}
 		if err == nil {
 			img = renderCaptioned(shown.fig, shown.caption, 1000, 620)

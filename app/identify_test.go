@@ -175,3 +175,41 @@ func TestWorkbenchKnockOut(t *testing.T) {
 		}
 	}
 }
+
+// TestWorkbenchUnits: choosing nm shows the feature table and the figure in
+// nm (the 0.7842-µm feature as 784.2), is kept in the session, and survives
+// saving; a session with an unknown unit is refused.
+func TestWorkbenchUnits(t *testing.T) {
+	a := test.NewTempApp(t)
+	b := demoBench(t)
+	wb := newWorkbench(a, b, newSession("demo", b.data))
+	defer wb.win.Close()
+	if got := wb.featureCell(1, 0); got != "0.7842" {
+		t.Errorf("in µm: %q", got)
+	}
+	ch := make(chan error, 4)
+	wb.done = func(_ *overlay, err error) { ch <- err }
+	wb.unitSel.SetSelected("nm")
+	if err := <-ch; err != nil {
+		t.Fatal(err)
+	}
+	if got := wb.featureCell(1, 0); got != "784.2" || wb.sess.WavelengthUnit != "nm" {
+		t.Errorf("in nm: cell %q, session unit %q", got, wb.sess.WavelengthUnit)
+	}
+	if lo, hi := wb.current.fig.X.Min, wb.current.fig.X.Max; lo < 300 || hi > 3000 {
+		t.Errorf("figure's axis %g–%g, want nm (400–2400)", lo, hi)
+	}
+	path := filepath.Join(t.TempDir(), "s.json")
+	if err := wb.sess.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	back, err := loadSession(path, "demo", b.data)
+	if err != nil || back.WavelengthUnit != "nm" {
+		t.Errorf("saved unit %q, %v", back.WavelengthUnit, err)
+	}
+	bad := *wb.sess
+	bad.WavelengthUnit = "furlong"
+	if err := bad.Validate(b.data); err == nil {
+		t.Error("an unknown wavelength unit was accepted")
+	}
+}

@@ -36,6 +36,9 @@ type Session struct {
 	// Candidates are the models kept for comparison (at most
 	// maxCandidates), in the order kept.
 	Candidates []Candidate `json:"candidates,omitempty"`
+	// WavelengthUnit is how wavelengths are shown: "um" (the default when
+	// empty), "nm" or "A".
+	WavelengthUnit string `json:"wavelength_unit,omitempty"`
 }
 
 // newSession returns a session on epoch 0 of d with the model parameters set
@@ -69,6 +72,9 @@ func (s *Session) Validate(d *dataset) error {
 	}
 	if _, err := opacity.ParseComposition(s.MassFractions); err != nil {
 		return fmt.Errorf("mass fractions: %w", err)
+	}
+	if _, ok := waveUnits[s.WavelengthUnit]; !ok && s.WavelengthUnit != "" {
+		return fmt.Errorf("wavelength_unit %q: want um, nm or A", s.WavelengthUnit)
 	}
 	if len(s.Candidates) > maxCandidates {
 		return fmt.Errorf("%d candidates (at most %d are kept)", len(s.Candidates), maxCandidates)

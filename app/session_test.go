@@ -127,7 +127,7 @@ func TestFigure(t *testing.T) {
 	}
 	obs := d.Observed[0]
 	ov := &overlay{Wavelength: obs.Wavelength, Flux: obs.Flux}
-	p, err := spectrumFigure(obs, ov, "test")
+	p, err := spectrumFigure(obs, ov, "test", unitOf(""))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -147,14 +147,14 @@ func TestFigure(t *testing.T) {
 	}
 	// The demo removes two opaque water bands: the observed spectrum must
 	// be drawn in three pieces, not joined across the gaps.
-	if n := len(segments(obs.Wavelength, obs.Flux)); n != 3 {
+	if n := len(segments(obs.Wavelength, obs.Flux, unitOf(""))); n != 3 {
 		t.Errorf("demo spectrum drawn in %d segments, want 3", n)
 	}
 	// A NaN breaks a line too.
-	if n := len(segments([]float64{1, 2, 3, 4, 5}, []float64{1, 1, math.NaN(), 1, 1})); n != 2 {
+	if n := len(segments([]float64{1, 2, 3, 4, 5}, []float64{1, 1, math.NaN(), 1, 1}, unitOf(""))); n != 2 {
 		t.Errorf("NaN split into %d segments, want 2", n)
 	}
-	if _, err := spectrumFigure(obs, nil, "no flux"); err != nil {
+	if _, err := spectrumFigure(obs, nil, "no flux", unitOf("")); err != nil {
 		t.Errorf("figure without overlay: %v", err)
 	}
 }
