@@ -10,8 +10,6 @@ import (
 	"strings"
 	"testing"
 
-	"fyne.io/fyne/v2/test"
-
 	"broadline/linelists"
 )
 
@@ -111,10 +109,7 @@ func TestDatasetFileErrors(t *testing.T) {
 // the user's dataset in the same window, with a fresh session for it.
 func TestWorkbenchOpensDataset(t *testing.T) {
 	path := exampleDataset(t)
-	a := test.NewTempApp(t)
-	b := demoBench(t)
-	wb := newWorkbench(a, b, newSession("demo", b.data))
-	defer wb.win.Close()
+	wb := demoWorkbench(t)
 	wb.done = func(*overlay, error) {}
 	nw := waitJob(t, wb, func() { wb.startOpenDataset(path) }).(*workbench)
 	if nw.win != wb.win || nw.sess.Dataset != path || nw.bench.data.name != path || !strings.Contains(nw.win.Title(), "DEMO-1") {

@@ -28,6 +28,16 @@ func demoBench(t *testing.T) *bench {
 	return b
 }
 
+// demoWorkbench opens a workbench on the built-in demo in a test app,
+// closed when the test ends.
+func demoWorkbench(t *testing.T) *workbench {
+	t.Helper()
+	b := demoBench(t)
+	wb := newWorkbench(test.NewTempApp(t), b, newSession("demo", b.data))
+	t.Cleanup(wb.win.Close)
+	return wb
+}
+
 // waitDone runs wb.recompute and waits for its result.
 func waitDone(t *testing.T, wb *workbench) *overlay {
 	t.Helper()

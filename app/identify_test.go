@@ -8,8 +8,6 @@ import (
 	"strings"
 	"testing"
 
-	"fyne.io/fyne/v2/test"
-
 	"broadline/spectra"
 )
 
@@ -71,10 +69,7 @@ func TestIdentifyDemo(t *testing.T) {
 // TestWorkbenchIdentify: Identify fills the table's model columns, and a new
 // model computation empties them again (they belonged to the old model).
 func TestWorkbenchIdentify(t *testing.T) {
-	a := test.NewTempApp(t)
-	b := demoBench(t)
-	wb := newWorkbench(a, b, newSession("demo", b.data))
-	defer wb.win.Close()
+	wb := demoWorkbench(t)
 	if got := wb.featureCell(0, 4); got != "(press Identify)" {
 		t.Errorf("before: %q", got)
 	}
@@ -100,10 +95,7 @@ func TestWorkbenchIdentify(t *testing.T) {
 // computing runs beside it; the model's computation finishes (it is not
 // cancelled), so the figure shows the session's model.
 func TestWorkbenchToolKeepsModel(t *testing.T) {
-	a := test.NewTempApp(t)
-	b := demoBench(t)
-	wb := newWorkbench(a, b, newSession("demo", b.data))
-	defer wb.win.Close()
+	wb := demoWorkbench(t)
 	ch := make(chan error, 8)
 	wb.done = func(_ *overlay, err error) { ch <- err }
 	wb.sess.Temperature = 5200
@@ -121,10 +113,7 @@ func TestWorkbenchToolKeepsModel(t *testing.T) {
 // worse, and at the 0.78-µm feature, which Sr II lines help make, it
 // absorbs less: its flux there is higher than the full model's.
 func TestWorkbenchKnockOut(t *testing.T) {
-	a := test.NewTempApp(t)
-	b := demoBench(t)
-	wb := newWorkbench(a, b, newSession("demo", b.data))
-	defer wb.win.Close()
+	wb := demoWorkbench(t)
 	if got := wb.knockSel.Options; len(got) != 9 || got[0] != "nothing" || got[2] != "Sr" {
 		t.Errorf("knock-out choices %q, want nothing and the eight elements with demo lines by Z", got)
 	}
@@ -180,10 +169,8 @@ func TestWorkbenchKnockOut(t *testing.T) {
 // nm (the 0.7842-µm feature as 784.2), is kept in the session, and survives
 // saving; a session with an unknown unit is refused.
 func TestWorkbenchUnits(t *testing.T) {
-	a := test.NewTempApp(t)
-	b := demoBench(t)
-	wb := newWorkbench(a, b, newSession("demo", b.data))
-	defer wb.win.Close()
+	wb := demoWorkbench(t)
+	b := wb.bench
 	if got := wb.featureCell(1, 0); got != "0.7842" {
 		t.Errorf("in µm: %q", got)
 	}
