@@ -99,7 +99,7 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 	}
 	var buf bytes.Buffer
 	buf.WriteString("velocity_c,chi2_per_sample\n")
-	for i, v := range sw.Velocity {
+	for i, v := range sw.Values {
 		buf.WriteString(strconv.FormatFloat(v, 'f', 6, 64))
 		buf.WriteByte(',')
 		buf.WriteString(strconv.FormatFloat(sw.Chi2N[i], 'g', 7, 64))

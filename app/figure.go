@@ -183,19 +183,24 @@ func renderFigure(p *plot.Plot, w, h int) image.Image {
 	return c.Image()
 }
 
-// sweepFigure is the plot of a velocity sweep: χ²/N against v_ph (in c),
-// log-scaled, with the refined minimum marked.
-func sweepFigure(sw *velocitySweep) (*plot.Plot, error) {
+// sweepFigure is the plot of a sweep: χ²/N against the parameter (v_ph in
+// c or T_ph in K), log-scaled, with the refined minimum marked.
+func sweepFigure(sw *paramSweep) (*plot.Plot, error) {
 	p := plot.New()
-	p.Title.Text = "χ²/N against the photosphere velocity"
-	p.X.Label.Text = "v_ph (c)"
+	if sw.Param == sweepTemperatureParam {
+		p.Title.Text = "χ²/N against the photosphere temperature"
+		p.X.Label.Text = "T_ph (K)"
+	} else {
+		p.Title.Text = "χ²/N against the photosphere velocity"
+		p.X.Label.Text = "v_ph (c)"
+	}
 	p.Y.Label.Text = "χ²/N"
 	p.Y.Scale = plot.LogScale{}
 	p.Y.Tick.Marker = plot.LogTicks{Prec: -1}
 	p.Add(plotter.NewGrid())
-	pts := make(plotter.XYs, len(sw.Velocity))
+	pts := make(plotter.XYs, len(sw.Values))
 	lo, hi := math.Inf(1), 0.0
-	for i, v := range sw.Velocity {
+	for i, v := range sw.Values {
 		pts[i] = plotter.XY{X: v, Y: sw.Chi2N[i]}
 		lo, hi = math.Min(lo, sw.Chi2N[i]), math.Max(hi, sw.Chi2N[i])
 	}
@@ -215,7 +220,7 @@ func sweepFigure(sw *velocitySweep) (*plot.Plot, error) {
 	mark.Color = palette.Model
 	mark.Width = 1.5
 	p.Add(mark)
-	p.Legend.Add(fmt.Sprintf("minimum near %.3f c", sw.Best), mark)
+	p.Legend.Add("minimum near "+sw.Param.describe(sw.Best), mark)
 	p.Legend.Top = true
 	p.Y.Min, p.Y.Max = lo/1.5, hi*1.5
 	return p, nil

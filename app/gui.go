@@ -153,7 +153,8 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 	wb.temp.Step = 50
 	wb.temp.OnChanged = func(v float64) { wb.sess.Temperature = v; wb.showValues() }
 	wb.temp.OnChangeEnded = func(float64) { wb.recompute() }
-	sweep := widget.NewButton("Sweep velocity…", func() { wb.sweepDialog() })
+	sweep := widget.NewButton("Sweep velocity…", func() { wb.sweepDialog(sweepVelocityParam) })
+	sweepT := widget.NewButton("Sweep temperature…", func() { wb.sweepDialog(sweepTemperatureParam) })
 
 	wb.fractions = widget.NewMultiLineEntry()
 	wb.fractions.Wrapping = fyne.TextWrapWord
@@ -212,7 +213,7 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 	controls := container.NewVBox(
 		widget.NewLabelWithStyle("Epoch", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.epoch,
 		widget.NewLabelWithStyle("Photosphere velocity", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.velocity, wb.velLabel, sweep,
-		widget.NewLabelWithStyle("Photosphere temperature", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.temp, wb.tempLabel,
+		widget.NewLabelWithStyle("Photosphere temperature", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.temp, wb.tempLabel, sweepT,
 		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions, apply,
 		wb.preview, reset,
 		widget.NewSeparator(),

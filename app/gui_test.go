@@ -197,7 +197,7 @@ func TestWorkbenchTools(t *testing.T) {
 
 	sess.PhotosphereVelocity = truth + 0.05
 	wb.syncControls()
-	sw := waitJob(t, wb, func() { wb.startSweep(truth-0.06, truth+0.06, 13) }).(*velocitySweep)
+	sw := waitJob(t, wb, func() { wb.startSweep(sweepVelocityParam, truth-0.06, truth+0.06, 13) }).(*paramSweep)
 	if math.Abs(sw.Best-truth) > 0.01 || !strings.Contains(wb.status.Text, "least") {
 		t.Errorf("sweep best %.4f c (recorded %.4f), status %q", sw.Best, truth, wb.status.Text)
 	}
@@ -205,7 +205,7 @@ func TestWorkbenchTools(t *testing.T) {
 		t.Errorf("the sweep changed the session's velocity before it was used")
 	}
 	wb.done = func(*overlay, error) {}
-	wb.useVelocity(sw.Best)
+	wb.useSweep(sw)
 	if math.Abs(sess.PhotosphereVelocity-sw.Best) > 0.0005 || wb.velocity.Value != sess.PhotosphereVelocity {
 		t.Errorf("use: session %g, slider %g, want %g", sess.PhotosphereVelocity, wb.velocity.Value, sw.Best)
 	}

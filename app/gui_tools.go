@@ -27,60 +27,78 @@ import (
 // (gui.go), beside the model's computation. As in gui.go, the numbers come
 // from the bench (sweep.go, compare.go, identify.go, dataset.go).
 
-// sweepDialog asks for the range and number of velocities of a sweep.
-func (wb *workbench) sweepDialog() {
-	outer := wb.bench.data.Scenario.OuterVelocity
-	v := wb.sess.PhotosphereVelocity
-	from := widget.NewEntry()
-	from.SetText(fmt.Sprintf("%.3gc", max(0.02, v-0.08)))
-	to := widget.NewEntry()
-	to.SetText(fmt.Sprintf("%.3gc", min(outer-0.01, v+0.08)))
+// sweepDialog asks for the range and number of values of a sweep of
+// parameter p.
+func (wb *workbench) sweepDialog(p sweepParam) {
+	from, to := widget.NewEntry(), widget.NewEntry()
+	var title, hint string
+	if p == sweepTemperatureParam {
+		t := wb.sess.Temperature
+		from.SetText(fmt.Sprintf("%.0f", max(minSliderT, t-1500)))
+		to.SetText(fmt.Sprintf("%.0f", min(maxSliderT, t+1500)))
+		title, hint = "Sweep the photosphere temperature", "Temperatures in K."
+	} else {
+		v, outer := wb.sess.PhotosphereVelocity, wb.bench.data.Scenario.OuterVelocity
+		from.SetText(fmt.Sprintf("%.3gc", max(0.02, v-0.08)))
+		to.SetText(fmt.Sprintf("%.3gc", min(outer-0.01, v+0.08)))
+		title, hint = "Sweep the photosphere velocity", "Velocities as 0.2c or 60000km/s."
+	}
 	steps := widget.NewEntry()
 	steps.SetText("17")
-	dialog.ShowForm("Sweep the photosphere velocity", "Sweep", "Cancel",
+	dialog.ShowForm(title, "Sweep", "Cancel",
 		[]*widget.FormItem{
 			widget.NewFormItem("From", from),
 			widget.NewFormItem("To", to),
-			widget.NewFormItem("Velocities", steps),
-			widget.NewFormItem("", widget.NewLabel("Temperature and composition stay as set; each velocity is a full synthesis\n(or the preview, if it is switched on). Velocities as 0.2c or 60000km/s.")),
+			widget.NewFormItem("Values", steps),
+			widget.NewFormItem("", widget.NewLabel("Everything else stays as set; each value is a full synthesis\n(or the preview, if it is switched on). "+hint)),
 		},
 		func(ok bool) {
 			if !ok {
 				return
 			}
-			lo, err1 := parseVelocity(from.Text)
-			hi, err2 := parseVelocity(to.Text)
+			parse := parseVelocity
+			if p == sweepTemperatureParam {
+				parse = func(s string) (float64, error) {
+					x, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+					if err != nil {
+						return 0, fmt.Errorf("temperature %q: want a number of K", s)
+					}
+					return x, nil
+				}
+			}
+			lo, err1 := parse(from.Text)
+			hi, err2 := parse(to.Text)
 			n, err3 := strconv.Atoi(strings.TrimSpace(steps.Text))
 			if err := errors.Join(err1, err2, err3); err != nil {
 				dialog.ShowError(err, wb.win)
 				return
 			}
-			wb.startSweep(lo, hi, n)
+			wb.startSweep(p, lo, hi, n)
 		}, wb.win)
 }
 
-// startSweep runs a velocity sweep off the UI goroutine with a progress
-// bar; Cancel (or another tool) stops it.
-func (wb *workbench) startSweep(lo, hi float64, steps int) {
-	ctx, gen := wb.begin(true, fmt.Sprintf("sweeping %d velocities from %.3f to %.3f c…", steps, lo, hi))
+// startSweep runs a sweep of parameter p off the UI goroutine with a
+// progress bar; Cancel (or another tool) stops it.
+func (wb *workbench) startSweep(p sweepParam, lo, hi float64, steps int) {
+	ctx, gen := wb.begin(true, fmt.Sprintf("sweeping %s at %d values from %s to %s…", p.name(), steps, p.describe(lo), p.describe(hi)))
 	sess := *wb.sess
 	go func() {
-		sw, err := wb.bench.sweepVelocity(ctx, &sess, lo, hi, steps, wb.progressFunc(gen))
+		sw, err := wb.bench.sweep(ctx, &sess, p, lo, hi, steps, wb.progressFunc(gen))
 		var img image.Image
 		if err == nil {
-			p, ferr := sweepFigure(sw)
+			fig, ferr := sweepFigure(sw)
 			if ferr != nil {
 				err = ferr
 			} else {
-				img = renderFigure(p, 640, 380)
+				img = renderFigure(fig, 640, 380)
 			}
 		}
 		fyne.Do(func() { wb.finishSweep(gen, sw, img, err) })
 	}()
 }
 
-// finishSweep shows a sweep's curve and offers its best velocity.
-func (wb *workbench) finishSweep(gen int, sw *velocitySweep, img image.Image, err error) {
+// finishSweep shows a sweep's curve and offers its best value.
+func (wb *workbench) finishSweep(gen int, sw *paramSweep, img image.Image, err error) {
 	if !wb.end(true, gen) {
 		return
 	}
@@ -93,7 +111,8 @@ func (wb *workbench) finishSweep(gen int, sw *velocitySweep, img image.Image, er
 		wb.showJobError(err)
 		return
 	}
-	msg := fmt.Sprintf("velocity sweep: χ²/N is least (%.2f) near v_ph = %.3f c", sw.BestChi2N, sw.Best)
+	p := sw.Param
+	msg := fmt.Sprintf("%s sweep: χ²/N is least (%.2f) near %s = %s", p.name(), sw.BestChi2N, p.name(), p.describe(sw.Best))
 	if sw.AtEdge {
 		msg += " — at the end of the range: the minimum may lie outside it; widen the range"
 	}
@@ -107,20 +126,28 @@ func (wb *workbench) finishSweep(gen int, sw *velocitySweep, img image.Image, er
 	fig := canvas.NewImageFromImage(img)
 	fig.FillMode = canvas.ImageFillContain
 	fig.SetMinSize(fyne.NewSize(640, 380))
-	use := widget.NewButton(fmt.Sprintf("Use v_ph = %.3f c", sw.Best), nil)
-	d := dialog.NewCustom("Velocity sweep", "Close", container.NewBorder(widget.NewLabel(msg), use, nil, nil, fig), wb.win)
+	use := widget.NewButton(fmt.Sprintf("Use %s = %s", p.name(), p.describe(sw.Best)), nil)
+	d := dialog.NewCustom("Sweep", "Close", container.NewBorder(widget.NewLabel(msg), use, nil, nil, fig), wb.win)
 	use.OnTapped = func() {
 		d.Hide()
-		wb.useVelocity(sw.Best)
+		wb.useSweep(sw)
 	}
 	d.Show()
 }
 
-// useVelocity sets the photosphere velocity, to the slider's step of
-// 0.001 c, and recomputes.
-func (wb *workbench) useVelocity(v float64) {
-	v = math.Round(v/wb.velocity.Step) * wb.velocity.Step
-	wb.sess.PhotosphereVelocity = min(max(v, wb.velocity.Min), wb.velocity.Max)
+// useSweep sets the swept parameter to the sweep's best value, to the
+// slider's step (0.001 c, 50 K), and recomputes.
+func (wb *workbench) useSweep(sw *paramSweep) {
+	sl := wb.velocity
+	if sw.Param == sweepTemperatureParam {
+		sl = wb.temp
+	}
+	v := min(max(math.Round(sw.Best/sl.Step)*sl.Step, sl.Min), sl.Max)
+	if sw.Param == sweepTemperatureParam {
+		wb.sess.Temperature = v
+	} else {
+		wb.sess.PhotosphereVelocity = v
+	}
 	wb.syncControls()
 	wb.recompute()
 }

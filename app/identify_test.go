@@ -102,7 +102,7 @@ func TestWorkbenchToolKeepsModel(t *testing.T) {
 	wb.syncControls()
 	wb.recompute()
 	v := wb.sess.PhotosphereVelocity
-	waitJob(t, wb, func() { wb.startSweep(v-0.02, v+0.02, 3) })
+	waitJob(t, wb, func() { wb.startSweep(sweepVelocityParam, v-0.02, v+0.02, 3) })
 	if err := <-ch; err != nil {
 		t.Errorf("the model's computation: %v", err)
 	}

@@ -23,7 +23,7 @@ func TestSweepRecoversVelocity(t *testing.T) {
 		s.resetModel(b.data)
 		truth := s.PhotosphereVelocity
 		var calls []int
-		sw, err := b.sweepVelocity(context.Background(), s, truth-0.06, truth+0.06, 7, func(done, total int) {
+		sw, err := b.sweep(context.Background(), s, sweepVelocityParam, truth-0.06, truth+0.06, 7, func(done, total int) {
 			if total != 7+fit.RefineEvals {
 				t.Errorf("progress total %d, want %d", total, 7+fit.RefineEvals)
 			}
@@ -53,17 +53,38 @@ func TestSweepErrorsAndCancel(t *testing.T) {
 		lo, hi float64
 		n      int
 	}{{0, 0.2, 5}, {0.2, 0.1, 5}, {0.1, outer, 5}, {0.1, 0.2, 2}, {0.1, 0.2, fit.MaxSweepSteps + 1}} {
-		if _, err := b.sweepVelocity(context.Background(), s, c.lo, c.hi, c.n, nil); err == nil {
+		if _, err := b.sweep(context.Background(), s, sweepVelocityParam, c.lo, c.hi, c.n, nil); err == nil {
 			t.Errorf("sweep %v–%v in %d steps: no error", c.lo, c.hi, c.n)
 		}
 	}
 	ctx, cancel := context.WithCancel(context.Background())
-	_, err := b.sweepVelocity(ctx, s, 0.1, 0.3, 20, func(done, _ int) {
+	_, err := b.sweep(ctx, s, sweepVelocityParam, 0.1, 0.3, 20, func(done, _ int) {
 		if done == 2 {
 			cancel()
 		}
 	})
 	if !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled sweep: %v", err)
+	}
+}
+
+// TestSweepRecoversTemperature: the same injection–recovery check for the
+// photosphere temperature, with the velocity at its recorded value: the
+// sweep of 3500–6500 K in 250-K steps finds the recorded 5000 K within
+// 50 K; a range outside the workbench's 1500–15000 K is refused.
+func TestSweepRecoversTemperature(t *testing.T) {
+	b := demoBench(t)
+	s := newSession("demo", b.data)
+	truth := s.Temperature
+	sw, err := b.sweep(context.Background(), s, sweepTemperatureParam, truth-1500, truth+1500, 13, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("recorded %.0f K, sweep best %.1f K, χ²/N %.3g", truth, sw.Best, sw.BestChi2N)
+	if sw.AtEdge || math.Abs(sw.Best-truth) > 50 || sw.BestChi2N > 1.5 {
+		t.Errorf("best %.1f K (recorded %.0f), χ²/N %.3f, at edge %v", sw.Best, truth, sw.BestChi2N, sw.AtEdge)
+	}
+	if _, err := b.sweep(context.Background(), s, sweepTemperatureParam, 1000, 3000, 5, nil); err == nil {
+		t.Error("a temperature sweep from 1000 K was accepted")
 	}
 }
