@@ -67,8 +67,8 @@ func (s *Session) Validate(d *dataset) error {
 		return fmt.Errorf("epoch %d out of range (the dataset has %d)", s.Epoch, len(d.Scenario.Epochs))
 	case !(s.PhotosphereVelocity > 0) || s.PhotosphereVelocity >= d.Scenario.OuterVelocity:
 		return fmt.Errorf("photosphere velocity %gc must lie between 0 and the outer velocity %gc", s.PhotosphereVelocity, d.Scenario.OuterVelocity)
-	case !(s.Temperature >= 1000 && s.Temperature <= 1e5):
-		return fmt.Errorf("temperature %g K outside 1000–100000 K", s.Temperature)
+	case !(s.Temperature >= minSliderT && s.Temperature <= maxSliderT):
+		return fmt.Errorf("temperature %g K outside the workbench's %g–%g K", s.Temperature, minSliderT, maxSliderT)
 	}
 	if _, err := opacity.ParseComposition(s.MassFractions); err != nil {
 		return fmt.Errorf("mass fractions: %w", err)
