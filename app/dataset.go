@@ -49,6 +49,10 @@ type datasetSpec struct {
 // The photosphere temperatures the workbench's slider offers, K.
 const minSliderT, maxSliderT = 1500.0, 15000.0
 
+// The photosphere velocities the slider offers: from minSliderV to
+// sliderVGap below the outer velocity (v/c).
+const minSliderV, sliderVGap = 0.02, 0.01
+
 // Bounds of a dataset file: it is small and hand-written.
 const (
 	maxDatasetBytes = 1 << 20
@@ -99,6 +103,10 @@ func (f *datasetFile) check() error {
 		}
 		if err := sc.Ejecta(i).Validate(); err != nil {
 			return fmt.Errorf("epochs[%d] (%s): %w", i, e.File, err)
+		}
+		if !(e.PhotosphereVelocity >= minSliderV && e.PhotosphereVelocity <= f.OuterVelocity-sliderVGap) {
+			return fmt.Errorf("epochs[%d].photosphere_velocity_c %g: want %g–%g (the workbench's range below outer_velocity_c)",
+				i, e.PhotosphereVelocity, minSliderV, f.OuterVelocity-sliderVGap)
 		}
 		if !(e.Temperature >= minSliderT && e.Temperature <= maxSliderT) {
 			return fmt.Errorf("epochs[%d].temperature_k %g: want %g–%g K (the workbench's range)", i, e.Temperature, minSliderT, maxSliderT)

@@ -143,7 +143,7 @@ func newWorkbenchIn(win fyne.Window, b *bench, s *Session) *workbench {
 	})
 
 	wb.velLabel = widget.NewLabel("")
-	wb.velocity = widget.NewSlider(0.02, sc.OuterVelocity-0.01)
+	wb.velocity = widget.NewSlider(minSliderV, sc.OuterVelocity-sliderVGap)
 	wb.velocity.Step = 0.001 // 300 km/s
 	wb.velocity.OnChanged = func(v float64) { wb.sess.PhotosphereVelocity = v; wb.showValues() }
 	wb.velocity.OnChangeEnded = func(float64) { wb.recompute() }

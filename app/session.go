@@ -65,8 +65,9 @@ func (s *Session) Validate(d *dataset) error {
 		return fmt.Errorf("session version %d not supported (this program writes %d)", s.Version, sessionVersion)
 	case s.Epoch < 0 || s.Epoch >= len(d.Scenario.Epochs):
 		return fmt.Errorf("epoch %d out of range (the dataset has %d)", s.Epoch, len(d.Scenario.Epochs))
-	case !(s.PhotosphereVelocity > 0) || s.PhotosphereVelocity >= d.Scenario.OuterVelocity:
-		return fmt.Errorf("photosphere velocity %gc must lie between 0 and the outer velocity %gc", s.PhotosphereVelocity, d.Scenario.OuterVelocity)
+	case !(s.PhotosphereVelocity >= minSliderV) || s.PhotosphereVelocity > d.Scenario.OuterVelocity-sliderVGap:
+		return fmt.Errorf("photosphere velocity %gc must lie between %gc and %gc below the outer velocity %gc",
+			s.PhotosphereVelocity, minSliderV, sliderVGap, d.Scenario.OuterVelocity)
 	case !(s.Temperature >= minSliderT && s.Temperature <= maxSliderT):
 		return fmt.Errorf("temperature %g K outside the workbench's %g–%g K", s.Temperature, minSliderT, maxSliderT)
 	}

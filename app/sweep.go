@@ -41,8 +41,8 @@ func (p sweepParam) name() string {
 }
 
 // sweep synthesises the session's model at steps values of parameter p
-// evenly spaced from lo to hi (v/c for the velocity, below the outer
-// velocity; K for the temperature, within the workbench's 1500–15000 K),
+// evenly spaced from lo to hi (v/c for the velocity, within the slider's
+// range; K for the temperature, within the workbench's 1500–15000 K),
 // with everything else as the session has it, and compares each with the
 // observed spectrum (fit.Sweep: grid, then golden-section refinement).
 // progress, when not nil, is called after each synthesis with the number
@@ -51,8 +51,8 @@ func (p sweepParam) name() string {
 func (b *bench) sweep(ctx context.Context, s *Session, p sweepParam, lo, hi float64, steps int, progress func(done, total int)) (*paramSweep, error) {
 	switch p {
 	case sweepVelocityParam:
-		if outer := b.data.Scenario.OuterVelocity; hi >= outer {
-			return nil, fmt.Errorf("velocity sweep: range %g–%g c must end below the outer velocity %g c", lo, hi, outer)
+		if top := b.data.Scenario.OuterVelocity - sliderVGap; lo < minSliderV || hi > top {
+			return nil, fmt.Errorf("velocity sweep: range %g–%g c must lie within %g–%g c (%g c below the outer velocity)", lo, hi, minSliderV, top, sliderVGap)
 		}
 	case sweepTemperatureParam:
 		if lo < minSliderT || hi > maxSliderT {
