@@ -50,7 +50,7 @@ func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
 	case !(*featR > 0) || math.IsInf(*featR, 0):
 		return usagef("--feature-resolving-power %g: want > 0", *featR)
 	}
-	su, err := f.setup(math.NaN())
+	su, err := f.setup(math.NaN(), math.NaN())
 	if err != nil {
 		return err
 	}

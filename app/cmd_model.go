@@ -176,11 +176,16 @@ type modelSetup struct {
 }
 
 // setup checks every value (a *usageError naming the flag when one is bad)
-// before it reads the line lists and builds the model. vph is the
-// photosphere velocity to check the ejecta with when the command sets it
-// itself (NaN: take --photosphere-velocity).
-func (f *modelFlags) setup(vph float64) (*modelSetup, error) {
+// before it reads the line lists and builds the model. vph and tph are the
+// photosphere velocity and temperature to check the ejecta with when the
+// command sets them itself (NaN: take --photosphere-velocity and
+// --temperature).
+func (f *modelFlags) setup(vph, tph float64) (*modelSetup, error) {
 	days, temp, mass := f.daysF.value(), f.tempF.value(), f.massF.value()
+	withT := math.IsNaN(tph)
+	if !withT {
+		temp = tph
+	}
 	vout := f.vout.beta
 	if !f.vout.set {
 		vout = math.NaN()
@@ -219,10 +224,11 @@ func (f *modelFlags) setup(vph float64) (*modelSetup, error) {
 	if withVph {
 		checks = append(checks, check{"photosphere-velocity", "velocity, e.g. 0.2c", vph})
 	}
-	checks = append(checks,
-		check{"outer-velocity", "velocity, e.g. 0.35c", vout},
-		check{"temperature", "temperature in K", temp},
-		check{"ejecta-mass", "mass in solar masses", mass})
+	checks = append(checks, check{"outer-velocity", "velocity, e.g. 0.35c", vout})
+	if withT {
+		checks = append(checks, check{"temperature", "temperature in K", temp})
+	}
+	checks = append(checks, check{"ejecta-mass", "mass in solar masses", mass})
 	for _, chk := range checks {
 		if err := need(chk.name, chk.v, chk.what); err != nil {
 			return nil, err
@@ -323,7 +329,7 @@ func runModel(c *command, args []string, stdout, stderr io.Writer) error {
 	if len(pos) > 0 {
 		return usagef("unexpected argument %q (line lists go after --lines)", pos[0])
 	}
-	su, err := f.setup(math.NaN())
+	su, err := f.setup(math.NaN(), math.NaN())
 	if err != nil {
 		return err
 	}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -142,5 +143,66 @@ func TestIdentifyCommand(t *testing.T) {
 	}
 	if status, out, _ := runCmd("identify", "--lines", "x"); status != 2 || out != "" {
 		t.Errorf("identify without --spectrum: status %d, stdout %q", status, out)
+	}
+}
+
+// withoutFlag returns args without flag and its value.
+func withoutFlag(args []string, flag string) []string {
+	var out []string
+	for i := 0; i < len(args); i++ {
+		if args[i] == flag {
+			i++
+			continue
+		}
+		out = append(out, args[i])
+	}
+	return out
+}
+
+// TestSweepCommandTemperature: the temperature sweep of the demo's second
+// epoch, at the recorded velocity, finds the recorded temperature to 50 K
+// and says so in its fixed form; mixing the two sweeps, or giving the
+// swept value as a flag too, is refused.
+func TestSweepCommandTemperature(t *testing.T) {
+	d, err := loadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	ep := d.Scenario.Epochs[1]
+	args := append(withoutFlag(demoSweepArgs(t, 1), "--temperature"),
+		"--photosphere-velocity", fmt.Sprintf("%gc", ep.PhotosphereVelocity),
+		"--from-temperature", fmt.Sprint(ep.Temperature-900), "--to-temperature", fmt.Sprint(ep.Temperature+900), "--steps", "7")
+	args = slices.Clip(args) // each bad case below appends to its own copy
+	status, out, errs := runCmd(args...)
+	if status != 0 {
+		t.Fatalf("status %d: %s", status, errs)
+	}
+	if !strings.HasPrefix(out, "temperature_k,chi2_per_sample\n") || strings.Count(out, "\n") != 8 {
+		t.Errorf("CSV %q", out)
+	}
+	i := strings.Index(errs, "sweep: best temperature_k=")
+	var best float64
+	if i < 0 {
+		t.Fatalf("stderr %q", errs)
+	}
+	if _, err := fmt.Sscanf(errs[i:], "sweep: best temperature_k=%g", &best); err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("recorded %.0f K, best %.1f K", ep.Temperature, best)
+	if math.Abs(best-ep.Temperature) > 50 {
+		t.Errorf("best %.1f K, recorded %.0f K", best, ep.Temperature)
+	}
+	for name, bad := range map[string][]string{
+		"both":       append(args, "--from-velocity", "0.1c", "--to-velocity", "0.2c"),
+		"T given":    append(args, "--temperature", "4000"),
+		"v given":    append(demoSweepArgs(t, 1, "--from-velocity", "0.1c", "--to-velocity", "0.2c"), "--photosphere-velocity", "0.15c"),
+		"half a T":   withoutFlag(args, "--to-temperature"),
+		"reversed T": append(withoutFlag(withoutFlag(args, "--from-temperature"), "--to-temperature"), "--from-temperature", "5000", "--to-temperature", "4000"),
+	} {
+		status, out, errs := runCmd(bad...)
+		if status != 2 || out != "" || strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+			t.Errorf("%s: status %d, stdout %q, stderr %q", name, status, out, errs)
+		}
+		t.Logf("%s: %s", name, strings.TrimSpace(errs))
 	}
 }
