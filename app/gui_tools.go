@@ -99,18 +99,11 @@ func (wb *workbench) startSweep(p sweepParam, lo, hi float64, steps int) {
 
 // finishSweep shows a sweep's curve and offers its best value.
 func (wb *workbench) finishSweep(gen int, sw *paramSweep, img image.Image, err error) {
-	if !wb.end(true, gen) {
-		return
-	}
-	defer func() {
-		if wb.jobDone != nil {
-			wb.jobDone(sw, err)
-		}
-	}()
-	if err != nil {
-		wb.showJobError(err)
-		return
-	}
+	wb.finishTool(gen, sw, err, func() { wb.showSweep(sw, img) })
+}
+
+// showSweep reports a finished sweep and opens its dialog.
+func (wb *workbench) showSweep(sw *paramSweep, img image.Image) {
 	p := sw.Param
 	msg := fmt.Sprintf("%s sweep: χ²/N is least (%.2f) near %s = %s", p.name(), sw.BestChi2N, p.name(), p.describe(sw.Best))
 	if sw.AtEdge {
@@ -152,7 +145,24 @@ func (wb *workbench) useSweep(sw *paramSweep) {
 	wb.recompute()
 }
 
-// showJobError reports a failed or cancelled sweep or comparison.
+// finishTool ends tool computation gen on the UI goroutine: unless a newer
+// tool has started meanwhile, it reports err (cancelled or failed) or calls
+// show, then tells the test hook jobDone the result.
+func (wb *workbench) finishTool(gen int, result any, err error, show func()) {
+	if !wb.end(true, gen) {
+		return
+	}
+	if err != nil {
+		wb.showJobError(err)
+	} else {
+		show()
+	}
+	if wb.jobDone != nil {
+		wb.jobDone(result, err)
+	}
+}
+
+// showJobError reports a failed or cancelled tool computation.
 func (wb *workbench) showJobError(err error) {
 	if errors.Is(err, context.Canceled) {
 		wb.status.SetText("cancelled")
@@ -229,18 +239,12 @@ func (wb *workbench) startComparison() {
 
 // finishComparison shows the comparison figure with the export controls.
 func (wb *workbench) finishComparison(gen int, shown *exportable, img image.Image, err error) {
-	if !wb.end(true, gen) {
-		return
-	}
-	defer func() {
-		if wb.jobDone != nil {
-			wb.jobDone(shown, err)
-		}
-	}()
-	if err != nil {
-		wb.showJobError(err)
-		return
-	}
+	wb.finishTool(gen, shown, err, func() { wb.showComparison(shown, img) })
+}
+
+// showComparison keeps a finished comparison for export and opens its
+// dialog.
+func (wb *workbench) showComparison(shown *exportable, img image.Image) {
 	wb.compared = shown
 	wb.status.SetText("comparison ready: export it from the dialog")
 	fig := canvas.NewImageFromImage(img)
@@ -376,23 +380,14 @@ func (wb *workbench) startIdentify() {
 }
 
 func (wb *workbench) finishIdentify(gen int, s *Session, attr []*synth.Attribution, err error) {
-	if !wb.end(true, gen) {
-		return
-	}
-	defer func() {
-		if wb.jobDone != nil {
-			wb.jobDone(attr, err)
+	wb.finishTool(gen, attr, err, func() {
+		if s.Epoch != wb.sess.Epoch || len(attr) != len(wb.featRows) {
+			wb.status.SetText("the shown epoch changed while the features were identified: press Identify again")
+			return
 		}
-	}()
-	if err != nil {
-		wb.showJobError(err)
-		return
-	}
-	if s.Epoch != wb.sess.Epoch || len(attr) != len(wb.featRows) {
-		return // the features changed meanwhile
-	}
-	wb.featAttr = attr
-	wb.attrFor = keyOf(s)
-	wb.features.Refresh()
-	wb.status.SetText(fmt.Sprintf("features identified with the model at v_ph = %.3f c, T = %.0f K (absorption-only shares; a hypothesis to check)", s.PhotosphereVelocity, s.Temperature))
+		wb.featAttr = attr
+		wb.attrFor = keyOf(s)
+		wb.features.Refresh()
+		wb.status.SetText(fmt.Sprintf("features identified with the model at v_ph = %.3f c, T = %.0f K (absorption-only shares; a hypothesis to check)", s.PhotosphereVelocity, s.Temperature))
+	})
 }
