@@ -38,26 +38,34 @@ func demoWorkbench(t *testing.T) *workbench {
 	return wb
 }
 
-// waitDone runs wb.recompute and waits for its result.
-func waitDone(t *testing.T, wb *workbench) *overlay {
+// await installs a completion hook with hook, runs start, and waits for
+// the hook's result (failing the test on an error or after two minutes).
+func await[T any](t *testing.T, hook func(func(T, error)), start func()) T {
 	t.Helper()
 	type res struct {
-		ov  *overlay
+		v   T
 		err error
 	}
 	ch := make(chan res, 4)
-	wb.done = func(ov *overlay, err error) { ch <- res{ov, err} }
-	wb.recompute()
+	hook(func(v T, err error) { ch <- res{v, err} })
+	start()
 	select {
 	case r := <-ch:
 		if r.err != nil {
 			t.Fatal(r.err)
 		}
-		return r.ov
+		return r.v
 	case <-time.After(2 * time.Minute):
 		t.Fatal("computation did not finish")
 	}
-	return nil
+	var zero T
+	return zero
+}
+
+// waitDone runs wb.recompute and waits for its result.
+func waitDone(t *testing.T, wb *workbench) *overlay {
+	t.Helper()
+	return await(t, func(f func(*overlay, error)) { wb.done = f }, wb.recompute)
 }
 
 // TestWorkbenchOnDemo drives the workbench headless on the built-in demo: the
@@ -159,26 +167,11 @@ func TestWorkbenchOnDemo(t *testing.T) {
 	waitDone(t, wb) // let the recomputation started by openSession finish
 }
 
-// waitJob runs start and waits for the sweep or comparison it begins.
+// waitJob runs start and waits for the sweep, comparison, identification
+// or dataset load it begins.
 func waitJob(t *testing.T, wb *workbench, start func()) any {
 	t.Helper()
-	type res struct {
-		v   any
-		err error
-	}
-	ch := make(chan res, 1)
-	wb.jobDone = func(v any, err error) { ch <- res{v, err} }
-	start()
-	select {
-	case r := <-ch:
-		if r.err != nil {
-			t.Fatal(r.err)
-		}
-		return r.v
-	case <-time.After(2 * time.Minute):
-		t.Fatal("job did not finish")
-	}
-	return nil
+	return await(t, func(f func(any, error)) { wb.jobDone = f }, start)
 }
 
 // TestWorkbenchTools drives the sweep, the candidates and the comparison
