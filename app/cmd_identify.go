@@ -10,7 +10,6 @@ import (
 	"os/signal"
 	"strconv"
 
-	"broadline/opacity/synth"
 	"broadline/spectra"
 )
 
@@ -58,28 +57,22 @@ func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return usagef("--spectrum: %v", err)
 	}
-	all, err := spectra.FindFeatures(obs, spectra.FeatureOptions{ResolvingPower: *featR})
+	feats, err := spectra.FindFeatures(obs, spectra.FeatureOptions{ResolvingPower: *featR, MinSignificance: *minSig})
 	if err != nil {
 		return fmt.Errorf("feature search: %w", err)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
-	lo, hi := *f.from*1e4, *f.to*1e4
+	attr, err := attributeFeatures(ctx, su.model, su.comp, su.ejecta, su.settings, feats, *f.from*1e4, *f.to*1e4, nil)
+	if err != nil {
+		return err
+	}
 	w := csv.NewWriter(stdout)
 	if err := w.Write([]string{"minimum_um", "depth", "width_um", "significance", "absorbed_A", "elements", "lines"}); err != nil {
 		return err
 	}
-	n := 0
-	for _, feat := range all {
-		if feat.Significance < *minSig {
-			continue
-		}
-		var a *synth.Attribution
-		if from, to := max(feat.Wavelength-feat.Width, lo), min(feat.Wavelength+feat.Width, hi); to > from {
-			if a, err = su.model.Attribute(ctx, su.comp, su.ejecta, from, to, identifyLines, su.settings); err != nil {
-				return fmt.Errorf("feature at %.4f µm: %w", feat.Wavelength/1e4, err)
-			}
-		}
+	for i, feat := range feats {
+		a := attr[i]
 		absorbed := ""
 		if a != nil {
 			absorbed = strconv.FormatFloat(a.Absorbed, 'f', 1, 64)
@@ -90,7 +83,6 @@ func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
 			absorbed, elementsText(a), linesText(a)}); err != nil {
 			return err
 		}
-		n++
 	}
 	w.Flush()
 	if err := w.Error(); err != nil {
@@ -99,6 +91,6 @@ func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
 	su.describe(stderr, "identify", *f.preview, nil)
 	fmt.Fprintf(stderr, "identify: %d features of significance ≥ %g attributed with the model at v_ph = %.3f c, T = %.0f K; "+
 		"shares are of the absorbed equivalent width with each element alone (absorption-only); an attribution is a hypothesis\n",
-		n, *minSig, su.ejecta.BetaPh, su.ejecta.Temperature)
+		len(feats), *minSig, su.ejecta.BetaPh, su.ejecta.Temperature)
 	return nil
 }

@@ -327,16 +327,10 @@ func (wb *workbench) showValues() {
 // updateFeatures finds the absorption features of the shown epoch.
 func (wb *workbench) updateFeatures() {
 	obs := wb.bench.data.Observed[wb.sess.Epoch]
-	f, err := spectra.FindFeatures(obs, spectra.FeatureOptions{ResolvingPower: 150})
+	keep, err := spectra.FindFeatures(obs, spectra.FeatureOptions{ResolvingPower: 150, MinSignificance: 5})
 	if err != nil {
-		f = nil
+		keep = nil
 		wb.status.SetText("feature search: " + err.Error())
-	}
-	var keep []spectra.Feature
-	for _, x := range f {
-		if x.Significance >= 5 {
-			keep = append(keep, x)
-		}
 	}
 	wb.featRows = keep
 	wb.featAttr = nil

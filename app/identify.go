@@ -37,12 +37,21 @@ func (b *bench) identify(ctx context.Context, s *Session, feats []spectra.Featur
 	sc := b.data.Scenario
 	ej := sc.Ejecta(s.Epoch)
 	ej.BetaPh, ej.Temperature = s.PhotosphereVelocity, s.Temperature
-	lo, hi := sc.ModelFromUm*1e4, sc.ModelToUm*1e4
+	return attributeFeatures(ctx, m, comp, ej, synth.Settings{Workers: runtime.GOMAXPROCS(0)},
+		feats, sc.ModelFromUm*1e4, sc.ModelToUm*1e4, progress)
+}
+
+// attributeFeatures runs m.Attribute for each feature on the window of ±
+// its width around its minimum, clipped to the model's range [lo, hi] Å;
+// a feature outside the range gets nil. progress, when not nil, is called
+// after each feature. The workbench and the identify command share it.
+func attributeFeatures(ctx context.Context, m *synth.Model, comp opacity.Composition, ej synth.Ejecta, set synth.Settings,
+	feats []spectra.Feature, lo, hi float64, progress func(done, total int)) ([]*synth.Attribution, error) {
 	out := make([]*synth.Attribution, len(feats))
 	for i, f := range feats {
 		from, to := max(f.Wavelength-f.Width, lo), min(f.Wavelength+f.Width, hi)
 		if to > from {
-			a, err := m.Attribute(ctx, comp, ej, from, to, identifyLines, synth.Settings{Workers: runtime.GOMAXPROCS(0)})
+			a, err := m.Attribute(ctx, comp, ej, from, to, identifyLines, set)
 			if err != nil {
 				return nil, fmt.Errorf("feature at %.4f µm: %w", f.Wavelength/1e4, err)
 			}
