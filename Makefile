@@ -2,12 +2,13 @@
 # and `make test` (every test). Both install what they need first.
 GO      ?= go
 BIN     := bin/broadline
-# Packages without cgo run under the race detector; the app package (fyne,
-# cgo) runs without it, since a race build recompiles the C parts (~4 min).
-PURE    := ./linelists/... ./spectra/... ./opacity/... ./tools/...
+# Packages without cgo run under the race detector, the workbench's core,
+# commands and figures too; the GUI and main packages (fyne, cgo) run
+# without it, since a race build recompiles the C parts (~4 min).
+PURE    := ./linelists/... ./spectra/... ./opacity/... ./tools/... ./app/core/... ./app/cli/... ./app/figure/...
 export LANG ?= en_US.UTF-8
 
-.PHONY: all deps build run test bench fmt screenshot clean
+.PHONY: all deps build headless run test bench fmt screenshot clean
 
 all: build
 
@@ -17,6 +18,11 @@ deps:
 build: deps
 	$(GO) build -o $(BIN) ./app
 
+# headless: the commands without the workbench (no cgo, no X11), for
+# cluster nodes.
+headless:
+	CGO_ENABLED=0 $(GO) build -tags nogui -o bin/broadline-headless ./app
+
 run: build
 	./$(BIN)
 
@@ -24,7 +30,7 @@ test: deps
 	@test -z "$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go'))" || { echo "gofmt needed on:"; gofmt -l .; exit 1; }
 	$(GO) vet ./...
 	$(GO) test -race -timeout 15m $(PURE)
-	$(GO) test -timeout 10m ./app/...
+	$(GO) test -timeout 10m ./app ./app/gui/...
 
 bench: deps
 	$(GO) test -run '^$$' -bench . -benchmem ./...

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"broadline/app/cli"
 	"os"
 	"os/exec"
 	"strings"
@@ -12,7 +13,7 @@ import (
 // complain about the locale, because package locale sets one first.
 func TestLocaleQuiet(t *testing.T) {
 	if os.Getenv("BROADLINE_LOCALE_CHILD") == "1" {
-		os.Exit(dispatch([]string{"version"}, os.Stdout, os.Stderr))
+		os.Exit(cli.Main([]string{"version"}, os.Stdout, os.Stderr))
 	}
 	for _, env := range [][]string{{"LANG=C.UTF-8"}, {"LANG=C", "LC_ALL=C"}, {"LANG="}} {
 		cmd := exec.Command(os.Args[0], "-test.run=^TestLocaleQuiet$")
@@ -25,7 +26,7 @@ func TestLocaleQuiet(t *testing.T) {
 		if strings.Contains(string(out), "locale") {
 			t.Errorf("locale complaint with %v:\n%s", env, out)
 		}
-		if !strings.Contains(string(out), "broadline "+version) {
+		if !strings.Contains(string(out), "broadline "+cli.Version) {
 			t.Errorf("child output %q lacks the version", out)
 		}
 	}

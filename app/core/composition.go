@@ -1,0 +1,146 @@
+package core
+
+import (
+	"fmt"
+	"slices"
+	"strconv"
+	"strings"
+
+	"broadline/linelists"
+	"broadline/opacity"
+)
+
+// Composition is a checked element mix as the analyst gives it: weights per
+// element (any positive numbers; the model normalises them to mass
+// fractions). It is a comparable value: two compositions with the same
+// elements and weights are ==, whatever order or spacing they were typed
+// in. The zero Composition is empty and invalid in a model; build one with
+// ParseComposition.
+type Composition struct {
+	// text is the canonical form "Sr=0.05,Nd=0.001": elements by Z, weights
+	// written to round-trip exactly, so parsing it again gives it back.
+	text string
+}
+
+// ParseComposition reads comma-separated SYMBOL=WEIGHT pairs such as
+// "Ca=0.4, Sr=0.3, Nd=0.3" (symbols in any case). An unknown element, a
+// repeated one, a weight that is not a positive finite number, or an empty
+// list is an error naming the pair at fault.
+func ParseComposition(s string) (Composition, error) {
+	type pair struct {
+		z int
+		w float64
+	}
+	var ps []pair
+	for _, f := range strings.Split(s, ",") {
+		f = strings.TrimSpace(f)
+		if f == "" {
+			continue
+		}
+		sym, val, ok := strings.Cut(f, "=")
+		if !ok {
+			return Composition{}, fmt.Errorf("%q: want SYMBOL=WEIGHT, e.g. Sr=0.05", f)
+		}
+		e, err := linelists.ElementBySymbol(strings.TrimSpace(sym))
+		if err != nil {
+			return Composition{}, fmt.Errorf("%q: unknown element %q", f, strings.TrimSpace(sym))
+		}
+		w, err := strconv.ParseFloat(strings.TrimSpace(val), 64)
+		if err != nil || !(w > 0) || w > 1e300 {
+			return Composition{}, fmt.Errorf("%q: the weight must be a positive number", f)
+		}
+		for _, p := range ps {
+			if p.z == e.Z {
+				return Composition{}, fmt.Errorf("%s is given twice", e.Symbol)
+			}
+		}
+		ps = append(ps, pair{e.Z, w})
+	}
+	if len(ps) == 0 {
+		return Composition{}, fmt.Errorf("no elements: give e.g. \"Ca=0.4,Sr=0.3,Nd=0.3\"")
+	}
+	slices.SortFunc(ps, func(a, b pair) int { return a.z - b.z })
+	z := make([]int, len(ps))
+	w := make([]float64, len(ps))
+	var b strings.Builder
+	for i, p := range ps {
+		z[i], w[i] = p.z, p.w
+		e, _ := linelists.ElementByZ(p.z)
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteString(e.Symbol + "=" + strconv.FormatFloat(p.w, 'g', -1, 64))
+	}
+	if _, err := opacity.NewComposition(z, w); err != nil {
+		return Composition{}, err
+	}
+	return Composition{text: b.String()}, nil
+}
+
+// String is the canonical text, which ParseComposition reads back as c.
+func (c Composition) String() string { return c.text }
+
+// IsZero reports whether c is the empty (invalid) composition.
+func (c Composition) IsZero() bool { return c.text == "" }
+
+// Mix returns the normalised mass fractions for the physics.
+func (c Composition) Mix() (opacity.Composition, error) {
+	if c.IsZero() {
+		return opacity.Composition{}, fmt.Errorf("no composition given")
+	}
+	return opacity.ParseComposition(c.text)
+}
+
+// MarshalText writes the canonical text (sessions and dataset files keep
+// compositions as strings).
+func (c Composition) MarshalText() ([]byte, error) { return []byte(c.text), nil }
+
+// UnmarshalText parses b as ParseComposition does; the error names the
+// key, mass_fractions, under which files keep a composition.
+func (c *Composition) UnmarshalText(b []byte) error {
+	v, err := ParseComposition(string(b))
+	if err != nil {
+		return fmt.Errorf("mass_fractions: %w", err)
+	}
+	*c = v
+	return nil
+}
+
+// Fractions returns the element symbols and normalised mass fractions of
+// c, largest first.
+func (c Composition) Fractions() (symbols []string, fractions []float64) {
+	m, err := c.Mix()
+	if err != nil {
+		return nil, nil
+	}
+	idx := make([]int, len(m.Z))
+	for i := range idx {
+		idx[i] = i
+	}
+	slices.SortStableFunc(idx, func(a, b int) int {
+		switch {
+		case m.MassFraction[a] > m.MassFraction[b]:
+			return -1
+		case m.MassFraction[a] < m.MassFraction[b]:
+			return 1
+		}
+		return 0
+	})
+	for _, i := range idx {
+		e, _ := linelists.ElementByZ(m.Z[i])
+		symbols = append(symbols, e.Symbol)
+		fractions = append(fractions, m.MassFraction[i])
+	}
+	return symbols, fractions
+}
+
+// Text is the composition as captions and lists give it: the normalised
+// mass fractions, largest first, to three significant digits.
+func (c Composition) Text() string {
+	syms, xs := c.Fractions()
+	parts := make([]string, len(syms))
+	for i := range syms {
+		parts[i] = fmt.Sprintf("%s %.3g", syms[i], xs[i])
+	}
+	return strings.Join(parts, ", ")
+}

@@ -1,0 +1,68 @@
+package core
+
+import (
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+)
+
+// TestComposition: the same mix typed differently is the same value; the
+// canonical text parses back to itself; the normalised fractions are the
+// weights over their sum (hand-worked: 3:1 → 0.75, 0.25); bad text is
+// refused with the pair at fault named.
+func TestComposition(t *testing.T) {
+	a := mustComp(t, "Nd=1, sr=3")
+	b := mustComp(t, " Sr=3.0,Nd=1 ")
+	if a != b || a.String() != "Sr=3,Nd=1" {
+		t.Errorf("%q and %q: want equal, canonical Sr=3,Nd=1", a, b)
+	}
+	if again := mustComp(t, a.String()); again != a {
+		t.Errorf("canonical text does not parse back: %q → %q", a, again)
+	}
+	syms, xs := a.Fractions()
+	if len(syms) != 2 || syms[0] != "Sr" || math.Abs(xs[0]-0.75) > 1e-15 || math.Abs(xs[1]-0.25) > 1e-15 {
+		t.Errorf("fractions %v %v, want Sr 0.75, Nd 0.25", syms, xs)
+	}
+	if got := a.Text(); got != "Sr 0.75, Nd 0.25" {
+		t.Errorf("Text %q", got)
+	}
+	for in, want := range map[string]string{
+		"Sr=abc": "Sr=abc", "Qq=1": "Qq", "Sr=1,Sr=2": "twice", "": "no elements", "Sr": "SYMBOL=WEIGHT",
+		"Sr=-1": "positive", "Sr=0": "positive", "Sr=NaN": "positive", "Sr=Inf": "positive",
+	} {
+		if _, err := ParseComposition(in); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("%q: error %v, want one with %q", in, err, want)
+		}
+	}
+	// In JSON a composition is its text; a bad one names the key.
+	var m Model
+	if err := json.Unmarshal([]byte(`{"mass_fractions":"Sr=1,Ca=1"}`), &m); err != nil || m.MassFractions != mustComp(t, "Ca=1,Sr=1") {
+		t.Errorf("decoded %v, %v", m.MassFractions, err)
+	}
+	if err := json.Unmarshal([]byte(`{"mass_fractions":"Sr=abc"}`), &m); err == nil || !strings.Contains(err.Error(), "mass_fractions") {
+		t.Errorf("bad composition in JSON: %v", err)
+	}
+}
+
+// TestBadCompositionNeverKept is the repro of a bug of the earlier
+// string-typed session: typing "Sr=abc" and keeping a candidate made a
+// session that could be saved but never opened again. Now the bad text
+// never becomes a composition, so what is kept and saved opens again.
+func TestBadCompositionNeverKept(t *testing.T) {
+	b := demoBench(t)
+	s := NewSession(b)
+	if c, err := ParseComposition("Sr=abc"); err == nil {
+		s.MassFractions = c
+	}
+	if _, err := s.Keep(); err != nil {
+		t.Fatal(err)
+	}
+	path := t.TempDir() + "/s.json"
+	if err := s.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := LoadSession(path, b); err != nil {
+		t.Errorf("a saved session does not open again: %v", err)
+	}
+}

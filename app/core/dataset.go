@@ -1,0 +1,306 @@
+package core
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"io/fs"
+	"math"
+	"os"
+	"path"
+	"path/filepath"
+
+	"broadline/app/demo"
+	"broadline/linelists"
+	"broadline/opacity/synth"
+	"broadline/spectra"
+)
+
+// Dataset is the analyst's own dataset, as written in a dataset file (JSON,
+// our own format, documented in README.md): the observed spectra of one
+// event with their epochs, the line lists, and the fixed parts of the
+// ejecta model. Per epoch the photosphere velocity and temperature are the
+// starting values the workbench shows (and Reset returns to). The built-in
+// demo is a Dataset too.
+type Dataset struct {
+	Object         string      `json:"object"`
+	Note           string      `json:"note,omitempty"`
+	DistanceMpc    float64     `json:"distance_mpc"`
+	ResolvingPower float64     `json:"resolving_power"`
+	LineFiles      []string    `json:"line_files"`
+	LevelFiles     []string    `json:"level_files,omitempty"`
+	MassFractions  Composition `json:"mass_fractions"`
+	EjectaMass     float64     `json:"ejecta_mass_msun"`
+	InnerVelocity  float64     `json:"inner_velocity_c"`
+	OuterVelocity  float64     `json:"outer_velocity_c"`
+	DensityIndex   float64     `json:"density_index"`
+	Diluted        bool        `json:"diluted_temperature,omitempty"`
+	ModelFromUm    float64     `json:"model_from_um"`
+	ModelToUm      float64     `json:"model_to_um"`
+	Epochs         []Epoch     `json:"epochs"`
+}
+
+// Epoch is one observed spectrum of a dataset.
+type Epoch struct {
+	File                string  `json:"file"`
+	Days                float64 `json:"days"`
+	PhotosphereVelocity float64 `json:"photosphere_velocity_c"`
+	Temperature         float64 `json:"temperature_k"`
+}
+
+// Bounds of a dataset file: it is small and hand-written.
+const (
+	maxDatasetBytes = 1 << 20
+	maxDatasetFiles = 10000
+	maxEpochs       = 1000
+)
+
+// ReadDataset decodes and checks a dataset file; unknown keys are an
+// error, so a misspelt one is never ignored. name is for messages.
+func ReadDataset(r io.Reader, name string) (*Dataset, error) {
+	var d Dataset
+	dec := json.NewDecoder(io.LimitReader(r, maxDatasetBytes))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&d); err != nil {
+		return nil, fmt.Errorf("%s: dataset file: %w", name, err)
+	}
+	if err := d.Check(); err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	return &d, nil
+}
+
+// Check validates every value, naming the key at fault; epochs are
+// numbered from 1.
+func (d *Dataset) Check() error {
+	switch {
+	case d.Object == "":
+		return fmt.Errorf("object: give the event's name")
+	case !(d.DistanceMpc > 0) || math.IsInf(d.DistanceMpc, 0):
+		return fmt.Errorf("distance_mpc %g: want a positive distance in Mpc", d.DistanceMpc)
+	case !(d.ResolvingPower > 0) || d.ResolvingPower > 1e6:
+		return fmt.Errorf("resolving_power %g: want λ/Δλ of the spectra, 0 < R ≤ 1e6", d.ResolvingPower)
+	case len(d.LineFiles) == 0:
+		return fmt.Errorf("line_files: at least one line list is needed")
+	case len(d.LineFiles)+len(d.LevelFiles) > maxDatasetFiles:
+		return fmt.Errorf("line_files, level_files: %d files (at most %d)", len(d.LineFiles)+len(d.LevelFiles), maxDatasetFiles)
+	case len(d.Epochs) == 0 || len(d.Epochs) > maxEpochs:
+		return fmt.Errorf("epochs: %d spectra (want 1–%d)", len(d.Epochs), maxEpochs)
+	case !(d.ModelFromUm > 0) || !(d.ModelToUm > d.ModelFromUm) || d.ModelToUm/d.ModelFromUm > 1000:
+		return fmt.Errorf("model_from_um %g, model_to_um %g: want 0 < from < to, at most a factor 1000 apart", d.ModelFromUm, d.ModelToUm)
+	case d.MassFractions.IsZero():
+		return fmt.Errorf("mass_fractions: give the element mix, e.g. \"Ca=0.4,Sr=0.3,Nd=0.3\"")
+	}
+	for i, e := range d.Epochs {
+		if e.File == "" {
+			return fmt.Errorf("epochs[%d].file: name the spectrum", i+1)
+		}
+		m := d.StartModel(i)
+		if err := d.Ejecta(m).Validate(); err != nil {
+			return fmt.Errorf("epochs[%d] (%s): %w", i+1, e.File, err)
+		}
+		if !(e.PhotosphereVelocity >= MinVelocity && e.PhotosphereVelocity <= MaxVelocity(d)) {
+			return fmt.Errorf("epochs[%d].photosphere_velocity_c %g: want %g–%g (the workbench's range below outer_velocity_c)",
+				i+1, e.PhotosphereVelocity, MinVelocity, MaxVelocity(d))
+		}
+		if !(e.Temperature >= MinTemperature && e.Temperature <= MaxTemperature) {
+			return fmt.Errorf("epochs[%d].temperature_k %g: want %g–%g K (the workbench's range)", i+1, e.Temperature, MinTemperature, MaxTemperature)
+		}
+	}
+	return nil
+}
+
+// Label is the dataset's one-line description: its note up to the first
+// full stop (for the demo: that it is invented), or "Dataset OBJECT.".
+func (d *Dataset) Label() string {
+	if d.Note == "" {
+		return "Dataset " + d.Object + "."
+	}
+	return FirstSentence(d.Note)
+}
+
+// DemoName is the dataset name of the built-in demo in saved sessions.
+const DemoName = "demo"
+
+// Demo returns the bench of the built-in invented demo (its line lists
+// and spectra embedded in the program).
+func Demo() (*Bench, error) {
+	d, sc, err := demoDataset()
+	if err != nil {
+		return nil, fmt.Errorf("demo: %w", err)
+	}
+	st, rep, err := sc.LoadStore(demo.FS, demo.Dir)
+	if err != nil {
+		return nil, fmt.Errorf("demo: %w", err)
+	}
+	obs, err := readSpectra(d, func(name string) (*spectra.Spectrum, error) {
+		p := path.Join(demo.Dir, name)
+		r, err := demo.FS.Open(p)
+		if err != nil {
+			return nil, err
+		}
+		defer r.Close()
+		return spectra.Read(r, spectra.ReadOptions{Name: p})
+	})
+	if err != nil {
+		return nil, fmt.Errorf("demo: %w", err)
+	}
+	return newBench(DemoName, d, obs, st, rep.Warnings), nil
+}
+
+// demoDataset is the demo's scenario as a Dataset (the scenario also
+// records how the invented spectra were made: noise, instrument).
+func demoDataset() (*Dataset, *synth.Scenario, error) {
+	f, err := demo.FS.Open(path.Join(demo.Dir, "scenario.json"))
+	if err != nil {
+		return nil, nil, err
+	}
+	sc, err := synth.ReadScenario(f)
+	f.Close()
+	if err != nil {
+		return nil, nil, err
+	}
+	comp, err := ParseComposition(sc.MassFractions)
+	if err != nil {
+		return nil, nil, err
+	}
+	d := &Dataset{
+		Object: sc.Object, Note: sc.Label, DistanceMpc: sc.DistanceMpc, ResolvingPower: sc.Instrument.ResolvingPower,
+		LineFiles: sc.LineFiles, LevelFiles: sc.LevelFiles, MassFractions: comp, EjectaMass: sc.EjectaMassSolar,
+		InnerVelocity: sc.InnerVelocity, OuterVelocity: sc.OuterVelocity, DensityIndex: sc.DensityIndex,
+		Diluted: sc.Diluted, ModelFromUm: sc.ModelFromUm, ModelToUm: sc.ModelToUm,
+	}
+	for _, e := range sc.Epochs {
+		d.Epochs = append(d.Epochs, Epoch{File: e.File, Days: e.Days, PhotosphereVelocity: e.PhotosphereVelocity, Temperature: e.Temperature})
+	}
+	if err := d.Check(); err != nil {
+		return nil, nil, err
+	}
+	return d, sc, nil
+}
+
+// readSpectra reads every epoch's spectrum with read; each must carry
+// uncertainties (χ² needs them). A spectrum without an epoch in its
+// metadata gets the dataset's days.
+func readSpectra(d *Dataset, read func(name string) (*spectra.Spectrum, error)) ([]*spectra.Spectrum, error) {
+	var out []*spectra.Spectrum
+	for i, e := range d.Epochs {
+		s, err := read(e.File)
+		if err != nil {
+			return nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+		}
+		if s.Uncertainty == nil {
+			return nil, fmt.Errorf("epochs[%d]: %s has no uncertainty column; χ² needs one", i+1, e.File)
+		}
+		if s.Meta.Epoch == 0 {
+			s.Meta.Epoch = e.Days
+		}
+		out = append(out, s)
+	}
+	return out, nil
+}
+
+// OpenDataset reads the dataset file at path, its spectra and its line
+// lists (through the line-list cache, reporting each file's progress, and
+// giving up when ctx is done), and returns the bench for it. Names in the
+// file are relative to the file's directory unless absolute.
+func OpenDataset(ctx context.Context, path string, progress func(linelists.Progress)) (*Bench, error) {
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		return nil, fmt.Errorf("open dataset: %w", err)
+	}
+	r, err := os.Open(abs)
+	if err != nil {
+		return nil, fmt.Errorf("open dataset: %w", err)
+	}
+	d, err := ReadDataset(r, abs)
+	r.Close()
+	if err != nil {
+		return nil, err
+	}
+	dir := filepath.Dir(abs)
+	resolve := func(name string) string {
+		if filepath.IsAbs(name) {
+			return name
+		}
+		return filepath.Join(dir, filepath.FromSlash(name))
+	}
+	obs, err := readSpectra(d, func(name string) (*spectra.Spectrum, error) {
+		return spectra.ReadFile(resolve(name), spectra.ReadOptions{})
+	})
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", abs, err)
+	}
+	var lines, levels []string
+	for _, l := range d.LineFiles {
+		lines = append(lines, resolve(l))
+	}
+	for _, l := range d.LevelFiles {
+		levels = append(levels, resolve(l))
+	}
+	st, rep, err := linelists.LoadContext(ctx, lines, linelists.Options{Levels: levels, Progress: progress})
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", abs, err)
+	}
+	return newBench(abs, d, obs, st, rep.Warnings), nil
+}
+
+// WriteExample writes the built-in demo into dir as a dataset of one's
+// own would be laid out — lines/ (line lists and levels files), spectra/
+// (the three invented spectra) and dataset.json — and returns the dataset
+// file's path: a template to edit. It refuses to write over an existing
+// dataset.json.
+func WriteExample(dir string) (string, error) {
+	d, _, err := demoDataset()
+	if err != nil {
+		return "", fmt.Errorf("example dataset: %w", err)
+	}
+	out := filepath.Join(dir, "dataset.json")
+	if _, err := os.Stat(out); err == nil {
+		return "", fmt.Errorf("%s exists: not overwritten", out)
+	}
+	copyTo := func(src, sub string) (string, error) {
+		data, err := fs.ReadFile(demo.FS, path.Join(demo.Dir, src))
+		if err != nil {
+			return "", err
+		}
+		name := path.Join(sub, path.Base(src))
+		if err := os.MkdirAll(filepath.Join(dir, sub), 0o755); err != nil {
+			return "", err
+		}
+		return name, WriteFileAtomic(filepath.Join(dir, filepath.FromSlash(name)), data)
+	}
+	f := *d
+	f.LineFiles, f.LevelFiles, f.Epochs = nil, nil, nil
+	for _, l := range d.LineFiles {
+		name, err := copyTo(l, "lines")
+		if err != nil {
+			return "", fmt.Errorf("example dataset: %w", err)
+		}
+		f.LineFiles = append(f.LineFiles, name)
+	}
+	for _, l := range d.LevelFiles {
+		name, err := copyTo(l, "lines")
+		if err != nil {
+			return "", fmt.Errorf("example dataset: %w", err)
+		}
+		f.LevelFiles = append(f.LevelFiles, name)
+	}
+	for _, ep := range d.Epochs {
+		name, err := copyTo(ep.File, "spectra")
+		if err != nil {
+			return "", fmt.Errorf("example dataset: %w", err)
+		}
+		ep.File = name
+		f.Epochs = append(f.Epochs, ep)
+	}
+	js, err := json.MarshalIndent(f, "", "  ")
+	if err != nil {
+		return "", fmt.Errorf("example dataset: %w", err)
+	}
+	if err := WriteFileAtomic(out, append(js, '\n')); err != nil {
+		return "", fmt.Errorf("example dataset: %w", err)
+	}
+	return out, nil
+}

@@ -1,0 +1,112 @@
+package core
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+func TestSessionSaveAndRead(t *testing.T) {
+	b := demoBench(t)
+	d := b.Data
+	s := NewSession(b)
+	if err := s.Validate(d); err != nil {
+		t.Fatalf("fresh session invalid: %v", err)
+	}
+	// The fresh session carries the scenario's recorded values.
+	if s.PhotosphereVelocity != d.Epochs[0].PhotosphereVelocity || s.MassFractions != d.MassFractions {
+		t.Errorf("session %+v does not start from the recorded values", s)
+	}
+	dir := t.TempDir()
+	path := filepath.Join(dir, "s.json")
+	s.Epoch = 1
+	s.Temperature = 4321
+	if err := s.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := ReadSession(f)
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(*got, *s) {
+		t.Errorf("round trip: got %+v, want %+v", got, s)
+	}
+	if ents, _ := os.ReadDir(dir); len(ents) != 1 {
+		t.Errorf("temporary files left behind: %v", ents)
+	}
+	// A new file is readable by others (0644), as files written by hand
+	// are; a replaced file keeps its permissions.
+	if fi, err := os.Stat(path); err != nil || fi.Mode().Perm() != 0o644 {
+		t.Errorf("new session file mode %v (%v), want 0644", fi.Mode().Perm(), err)
+	}
+	if err := os.Chmod(path, 0o600); err != nil {
+		t.Fatal(err)
+	}
+	if err := s.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	if fi, err := os.Stat(path); err != nil || fi.Mode().Perm() != 0o600 {
+		t.Errorf("replaced session file mode %v (%v), want the old 0600", fi.Mode().Perm(), err)
+	}
+}
+
+// TestSessionSaveIsAtomic: a save that cannot complete leaves the earlier
+// file as it was.
+func TestSessionSaveIsAtomic(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "s.json")
+	old := []byte(`{"version":1,"dataset":"demo"}`)
+	if err := os.WriteFile(path, old, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	// Make the rename fail: the target becomes a non-empty directory.
+	s := &Session{Version: 1, Dataset: "demo"}
+	if err := s.Save(filepath.Join(dir, "missing-dir", "s.json")); err == nil {
+		t.Error("save into a missing directory succeeded")
+	}
+	blocker := filepath.Join(dir, "blocked.json")
+	if err := os.MkdirAll(filepath.Join(blocker, "x"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := s.Save(blocker); err == nil {
+		t.Error("save over a directory succeeded")
+	}
+	if b, _ := os.ReadFile(path); !bytes.Equal(b, old) {
+		t.Errorf("earlier session changed: %q", b)
+	}
+	ents, _ := os.ReadDir(dir)
+	for _, e := range ents {
+		if strings.HasSuffix(e.Name(), ".tmp") {
+			t.Errorf("temporary file left behind: %s", e.Name())
+		}
+	}
+}
+
+func TestSessionRejects(t *testing.T) {
+	if _, err := ReadSession(strings.NewReader(`{"version":1,"epoch":0,"velocty":0.2}`)); err == nil {
+		t.Error("a misspelt key was accepted")
+	}
+	b := demoBench(t)
+	d := b.Data
+	for name, mod := range map[string]func(*Session){
+		"future version": func(s *Session) { s.Version = SessionVersion + 1 },
+		"epoch":          func(s *Session) { s.Epoch = len(d.Epochs) },
+		"velocity":       func(s *Session) { s.PhotosphereVelocity = d.OuterVelocity },
+		"temperature":    func(s *Session) { s.Temperature = -5 },
+		"composition":    func(s *Session) { s.MassFractions = Composition{} },
+	} {
+		s := NewSession(b)
+		mod(s)
+		if err := s.Validate(d); err == nil {
+			t.Errorf("%s: invalid session accepted: %+v", name, s)
+		}
+	}
+}

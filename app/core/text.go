@@ -1,0 +1,102 @@
+package core
+
+import (
+	"fmt"
+	"strings"
+
+	"broadline/linelists"
+	"broadline/opacity/synth"
+)
+
+// WaveUnit is a unit for showing wavelengths: its name, the factor from Å,
+// and the decimals that keep 1 Å visible at 1 µm.
+type WaveUnit struct {
+	Name     string
+	PerA     float64 // value in this unit of 1 Å
+	Decimals int
+}
+
+// WaveUnits are the wavelength units the workbench offers; µm is the
+// default (the field's usual unit for 0.4–2.5 µm spectra). Their keys are
+// what sessions save.
+var WaveUnits = map[string]WaveUnit{
+	"um": {"µm", 1e-4, 4},
+	"nm": {"nm", 0.1, 1},
+	"A":  {"Å", 1, 0},
+}
+
+// WaveUnitKeys are the keys of WaveUnits in the order menus offer them.
+var WaveUnitKeys = []string{"um", "nm", "A"}
+
+// UnitOf returns the unit saved as key ("" or unknown: µm).
+func UnitOf(key string) WaveUnit {
+	if u, ok := WaveUnits[key]; ok {
+		return u
+	}
+	return WaveUnits["um"]
+}
+
+// Cautions is the caption line every exported figure ends with.
+const Cautions = "Model: LTE, Sobolev approximation, sharp photosphere, incomplete atomic data. " +
+	"A matched feature is a hypothesis to be checked with full radiative transfer."
+
+// CaptionTail is the end of every exported figure's caption: the dataset's
+// label (for the demo: that it is invented) and the model's cautions.
+func (d *Dataset) CaptionTail() []string { return []string{d.Label(), Cautions} }
+
+// Caption is the caption line of model m under label in a figure.
+func (m Model) Caption(label string) string {
+	return fmt.Sprintf("%s: v_ph = %.3f c, T = %.0f K, mass fractions %s", label, m.PhotosphereVelocity, m.Temperature, m.MassFractions.Text())
+}
+
+// FirstSentence returns s up to and including its first full stop.
+func FirstSentence(s string) string {
+	for i := 0; i+1 < len(s); i++ {
+		if s[i] == '.' && s[i+1] == ' ' {
+			return s[:i+1]
+		}
+	}
+	return s
+}
+
+// ElementsText lists the elements that take at least 5 % of a window's
+// absorbed equivalent width, largest first: "Sr 62 %, Ca 30 %".
+func ElementsText(a *synth.Attribution) string {
+	if a == nil {
+		return "outside the model"
+	}
+	if !(a.Absorbed > 0) {
+		return "no model absorption"
+	}
+	var parts []string
+	for _, e := range a.Elements {
+		if e.Share >= 0.05 {
+			parts = append(parts, fmt.Sprintf("%s %.0f %%", e.Symbol, 100*e.Share))
+		}
+	}
+	if len(parts) == 0 {
+		return "no element above 5 %"
+	}
+	return strings.Join(parts, ", ")
+}
+
+// LinesText lists a window's strongest lines: "Sr II 10330.1 Å (τ 1.3)".
+func LinesText(a *synth.Attribution) string {
+	if a == nil || len(a.Lines) == 0 {
+		return "—"
+	}
+	parts := make([]string, len(a.Lines))
+	for i, l := range a.Lines {
+		parts[i] = fmt.Sprintf("%s %.1f Å (τ %.2g)", l.Species, l.Rest, l.TauPhotosphere)
+	}
+	return strings.Join(parts, ", ")
+}
+
+// ElementSymbol is the symbol of element z ("" if unknown).
+func ElementSymbol(z int) string {
+	e, err := linelists.ElementByZ(z)
+	if err != nil {
+		return ""
+	}
+	return e.Symbol
+}

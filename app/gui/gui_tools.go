@@ -1,0 +1,392 @@
+package gui
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"image"
+	"math"
+	"strconv"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/widget"
+	"gonum.org/v1/plot/vg"
+
+	"broadline/app/core"
+	"broadline/app/figure"
+	"broadline/linelists"
+	"broadline/opacity/synth"
+	"broadline/spectra"
+)
+
+// The workbench's tools beyond the live model: the velocity sweep, the kept
+// candidates, the comparison figure and the export, the identification of
+// the features and opening a dataset. Each tool runs in the tool slot
+// (gui.go), beside the model's computation. As in gui.go, the numbers come
+// from the bench (sweep.go, compare.go, identify.go, dataset.go).
+
+// sweepDialog asks for the range and number of values of a sweep of
+// parameter p.
+func (wb *workbench) sweepDialog(p core.Param) {
+	from, to := widget.NewEntry(), widget.NewEntry()
+	var title, hint string
+	if p == core.Temperature {
+		t := wb.sess.Temperature
+		from.SetText(fmt.Sprintf("%.0f", max(core.MinTemperature, t-1500)))
+		to.SetText(fmt.Sprintf("%.0f", min(core.MaxTemperature, t+1500)))
+		title, hint = "Sweep the photosphere temperature", "Temperatures in K."
+	} else {
+		v := wb.sess.PhotosphereVelocity
+		from.SetText(fmt.Sprintf("%.3gc", max(core.MinVelocity, v-0.08)))
+		to.SetText(fmt.Sprintf("%.3gc", min(core.MaxVelocity(wb.bench.Data), v+0.08)))
+		title, hint = "Sweep the photosphere velocity", "Velocities as 0.2c or 60000km/s."
+	}
+	steps := widget.NewEntry()
+	steps.SetText("17")
+	dialog.ShowForm(title, "Sweep", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("From", from),
+			widget.NewFormItem("To", to),
+			widget.NewFormItem("Values", steps),
+			widget.NewFormItem("", widget.NewLabel("Everything else stays as set; each value is a full synthesis\n(or the preview, if it is switched on). "+hint)),
+		},
+		func(ok bool) {
+			if !ok {
+				return
+			}
+			parse := core.ParseVelocity
+			if p == core.Temperature {
+				parse = func(s string) (float64, error) {
+					x, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+					if err != nil {
+						return 0, fmt.Errorf("temperature %q: want a number of K", s)
+					}
+					return x, nil
+				}
+			}
+			lo, err1 := parse(from.Text)
+			hi, err2 := parse(to.Text)
+			n, err3 := strconv.Atoi(strings.TrimSpace(steps.Text))
+			if err := errors.Join(err1, err2, err3); err != nil {
+				dialog.ShowError(err, wb.win)
+				return
+			}
+			wb.startSweep(p, lo, hi, n)
+		}, wb.win)
+}
+
+// startSweep runs a sweep of parameter p off the UI goroutine with a
+// progress bar; Cancel (or another tool) stops it.
+func (wb *workbench) startSweep(p core.Param, lo, hi float64, steps int) {
+	ctx, gen := wb.begin(true, fmt.Sprintf("sweeping %s at %d values from %s to %s…", p.Name(), steps, p.Describe(lo), p.Describe(hi)))
+	m := wb.sess.Model
+	go func() {
+		sw, err := wb.bench.Sweep(ctx, m, p, lo, hi, steps, wb.progressFunc(gen))
+		var img image.Image
+		if err == nil {
+			fig, ferr := figure.Sweep(sw)
+			if ferr != nil {
+				err = ferr
+			} else {
+				img = figure.Render(fig, 640, 380)
+			}
+		}
+		fyne.Do(func() { wb.finishSweep(gen, sw, img, err) })
+	}()
+}
+
+// finishSweep shows a sweep's curve and offers its best value.
+func (wb *workbench) finishSweep(gen int, sw *core.Sweep, img image.Image, err error) {
+	wb.finishTool(gen, sw, err, func() { wb.showSweep(sw, img) })
+}
+
+// showSweep reports a finished sweep and opens its dialog.
+func (wb *workbench) showSweep(sw *core.Sweep, img image.Image) {
+	p := sw.Param
+	msg := fmt.Sprintf("%s sweep: χ²/N is least (%.2f) near %s = %s", p.Name(), sw.BestChi2N, p.Name(), p.Describe(sw.Best))
+	if sw.AtEdge {
+		msg += " — at the end of the range: the minimum may lie outside it; widen the range"
+	}
+	if sw.At.Preview {
+		msg += " (absorption-only preview)"
+	}
+	wb.status.SetText(msg)
+	if img == nil {
+		return
+	}
+	fig := canvas.NewImageFromImage(img)
+	fig.FillMode = canvas.ImageFillContain
+	fig.SetMinSize(fyne.NewSize(640, 380))
+	use := widget.NewButton(fmt.Sprintf("Use %s = %s", p.Name(), p.Describe(sw.Best)), nil)
+	d := dialog.NewCustom("Sweep", "Close", container.NewBorder(widget.NewLabel(msg), use, nil, nil, fig), wb.win)
+	use.OnTapped = func() {
+		d.Hide()
+		wb.useSweep(sw)
+	}
+	d.Show()
+}
+
+// useSweep sets the swept parameter to the sweep's best value, to the
+// slider's step (0.001 c, 50 K), and recomputes; a sweep made for another
+// model (its other parameters since changed) is refused with the reason.
+func (wb *workbench) useSweep(sw *core.Sweep) {
+	if !sw.Matches(wb.sess.Model) {
+		wb.status.SetText("the sweep was made for another model (epoch, composition or the other photosphere value changed): sweep again")
+		return
+	}
+	sl := wb.velocity
+	if sw.Param == core.Temperature {
+		sl = wb.temp
+	}
+	v := min(max(math.Round(sw.Best/sl.Step)*sl.Step, sl.Min), sl.Max)
+	wb.sess.Model = sw.With(wb.sess.Model, v)
+	wb.syncControls()
+	wb.recompute()
+}
+
+// finishTool ends tool computation gen on the UI goroutine: unless a newer
+// tool has started meanwhile, it reports err (cancelled or failed) or calls
+// show, then tells the test hook jobDone the result.
+func (wb *workbench) finishTool(gen int, result any, err error, show func()) {
+	if !wb.end(true, gen) {
+		return
+	}
+	if err != nil {
+		wb.showJobError(err)
+	} else {
+		show()
+	}
+	if wb.jobDone != nil {
+		wb.jobDone(result, err)
+	}
+}
+
+// showJobError reports a failed or cancelled tool computation.
+func (wb *workbench) showJobError(err error) {
+	if errors.Is(err, context.Canceled) {
+		wb.status.SetText("cancelled")
+		return
+	}
+	wb.status.SetText("error: " + err.Error())
+}
+
+// keepCandidate keeps the current model as a candidate with the next free
+// label.
+func (wb *workbench) keepCandidate() error {
+	c, err := wb.sess.Keep()
+	if err != nil {
+		return err
+	}
+	wb.candList.Refresh()
+	wb.status.SetText(fmt.Sprintf("kept the current model as candidate %s", c.Label))
+	return nil
+}
+
+// candidateText is a candidate's line in the list.
+func (wb *workbench) candidateText(i int) string {
+	if i < 0 || i >= len(wb.sess.Candidates) {
+		return ""
+	}
+	c := wb.sess.Candidates[i]
+	return fmt.Sprintf("%s · %g d · %.3f c · %.0f K · %s", c.Label, wb.bench.Data.Epochs[c.Epoch].Days,
+		c.PhotosphereVelocity, c.Temperature, c.MassFractions.Text())
+}
+
+// showCandidate makes candidate i the current model.
+func (wb *workbench) showCandidate(i int) {
+	if i < 0 || i >= len(wb.sess.Candidates) {
+		return
+	}
+	wb.sess.Model = wb.sess.Candidates[i].Model
+	wb.syncControls()
+	wb.updateFeatures()
+	wb.recompute()
+}
+
+// removeCandidate forgets candidate i.
+func (wb *workbench) removeCandidate(i int) {
+	if i < 0 || i >= len(wb.sess.Candidates) {
+		return
+	}
+	wb.sess.Candidates = append(wb.sess.Candidates[:i:i], wb.sess.Candidates[i+1:]...)
+	wb.candList.Refresh()
+}
+
+// startComparison computes the candidates of the shown epoch off the UI
+// goroutine and shows their figure for export.
+func (wb *workbench) startComparison() {
+	ctx, gen := wb.begin(true, "computing the candidates of this epoch…")
+	cands := append([]core.Candidate(nil), wb.sess.Candidates...)
+	epoch, unit := wb.sess.Epoch, core.UnitOf(wb.sess.WavelengthUnit)
+	go func() {
+		var shown *figure.Captioned
+		var img image.Image
+		cmp, err := wb.bench.Compare(ctx, cands, epoch, wb.progressFunc(gen))
+		if err == nil {
+			shown, err = figure.Comparison(wb.bench, cmp, unit)
+		}
+		if err == nil {
+			img = shown.Render(1000, 620)
+		}
+		fyne.Do(func() { wb.finishComparison(gen, shown, img, err) })
+	}()
+}
+
+// finishComparison shows the comparison figure with the export controls.
+func (wb *workbench) finishComparison(gen int, shown *figure.Captioned, img image.Image, err error) {
+	wb.finishTool(gen, shown, err, func() { wb.showComparison(shown, img) })
+}
+
+// showComparison keeps a finished comparison for export and opens its
+// dialog.
+func (wb *workbench) showComparison(shown *figure.Captioned, img image.Image) {
+	wb.compared = shown
+	wb.status.SetText("comparison ready: export it from the dialog")
+	fig := canvas.NewImageFromImage(img)
+	fig.FillMode = canvas.ImageFillContain
+	fig.SetMinSize(fyne.NewSize(900, 560))
+	path := widget.NewEntry()
+	path.SetText(inWorkDir("comparison.png"))
+	export := widget.NewButton("Export", func() {
+		if err := wb.exportComparison(path.Text); err != nil {
+			dialog.ShowError(err, wb.win)
+		}
+	})
+	bar := container.NewBorder(nil, nil, widget.NewLabel("File (.png, .svg or .pdf)"), export, path)
+	dialog.ShowCustom("Candidate compositions", "Close", container.NewBorder(nil, bar, nil, nil, fig), wb.win)
+}
+
+// exportComparison writes the last comparison figure to path (10 × 6 in).
+func (wb *workbench) exportComparison(path string) error {
+	if wb.compared == nil {
+		return fmt.Errorf("no comparison to export: Figure ▸ Compare candidates first")
+	}
+	return wb.export(wb.compared, path)
+}
+
+// exportCurrent writes the figure the window shows to path (10 × 6 in).
+func (wb *workbench) exportCurrent(path string) error {
+	if wb.current == nil {
+		return fmt.Errorf("no figure to export yet: wait for the model")
+	}
+	return wb.export(wb.current, path)
+}
+
+func (wb *workbench) export(f *figure.Captioned, path string) error {
+	if err := f.Export(path, 10*vg.Inch, 6*vg.Inch); err != nil {
+		return err
+	}
+	wb.status.SetText("figure written to " + path)
+	return nil
+}
+
+// exportDialog asks where to write the shown figure.
+func (wb *workbench) exportDialog() {
+	path := widget.NewEntry()
+	path.SetText(inWorkDir("figure.png"))
+	dialog.ShowForm("Export the shown figure", "Export", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("File", path),
+			widget.NewFormItem("", widget.NewLabel("PNG, SVG or PDF by the extension; the caption gives the model and its cautions.")),
+		},
+		func(ok bool) {
+			if !ok {
+				return
+			}
+			if err := wb.exportCurrent(path.Text); err != nil {
+				dialog.ShowError(err, wb.win)
+			}
+		}, wb.win)
+}
+
+// openDatasetDialog asks for a dataset file and opens it.
+func (wb *workbench) openDatasetDialog() {
+	path := widget.NewEntry()
+	path.SetText(inWorkDir("dataset.json"))
+	dialog.ShowForm("Open dataset", "Open", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("Dataset file", path),
+			widget.NewFormItem("", widget.NewLabel("A dataset file names your spectra, line lists and the fixed model\nparameters (README, \"Dataset files\"); `broadline example DIR` writes one to start from.")),
+		},
+		func(ok bool) {
+			if ok {
+				wb.startOpenDataset(path.Text)
+			}
+		}, wb.win)
+}
+
+// startOpenDataset reads the dataset file at path, its spectra and its
+// line lists off the UI goroutine, with the line lists' progress and
+// Cancel; when it is read, the window shows it with a fresh session and
+// the current session is dropped (save it first to keep it).
+func (wb *workbench) startOpenDataset(path string) {
+	wb.stop()
+	ctx, gen := wb.begin(true, "reading the dataset "+path+"…")
+	go func() {
+		b, err := core.OpenDataset(ctx, path, func(p linelists.Progress) {
+			frac := float64(p.Index)
+			if p.Total > 0 {
+				frac += float64(p.Done) / float64(p.Total)
+			}
+			wb.progressFunc(gen)(int(1000*frac), 1000*p.Files)
+		})
+		fyne.Do(func() { wb.finishOpenDataset(gen, b, err) })
+	}()
+}
+
+// finishOpenDataset shows the dataset just read in this window.
+func (wb *workbench) finishOpenDataset(gen int, b *core.Bench, err error) {
+	if !wb.end(true, gen) {
+		return
+	}
+	if err != nil {
+		wb.showJobError(err)
+		if wb.jobDone != nil {
+			wb.jobDone(nil, err)
+		}
+		if !errors.Is(err, context.Canceled) {
+			dialog.ShowError(err, wb.win)
+		}
+		return
+	}
+	nw := newWorkbenchIn(wb.win, b, core.NewSession(b))
+	nw.done, nw.jobDone = wb.done, wb.jobDone
+	nw.recompute()
+	if wb.jobDone != nil {
+		wb.jobDone(nw, nil)
+	}
+}
+
+// startIdentify attributes the shown epoch's features to the current
+// model's elements and lines off the UI goroutine (progress per feature,
+// Cancel) and fills the table's last two columns.
+func (wb *workbench) startIdentify() {
+	if len(wb.featRows) == 0 {
+		wb.status.SetText("no features to identify in this spectrum")
+		return
+	}
+	ctx, gen := wb.begin(true, "identifying the features with the model…")
+	m := wb.sess.Model
+	feats := append([]spectra.Feature(nil), wb.featRows...)
+	go func() {
+		attr, err := wb.bench.Identify(ctx, m, feats, wb.progressFunc(gen))
+		fyne.Do(func() { wb.finishIdentify(gen, m, attr, err) })
+	}()
+}
+
+func (wb *workbench) finishIdentify(gen int, s core.Model, attr []*synth.Attribution, err error) {
+	wb.finishTool(gen, attr, err, func() {
+		if s.Epoch != wb.sess.Epoch || len(attr) != len(wb.featRows) {
+			wb.status.SetText("the shown epoch changed while the features were identified: press Identify again")
+			return
+		}
+		wb.featAttr = attr
+		wb.attrFor = s
+		wb.features.Refresh()
+		wb.status.SetText(fmt.Sprintf("features identified with the model at v_ph = %.3f c, T = %.0f K (absorption-only shares; a hypothesis to check)", s.PhotosphereVelocity, s.Temperature))
+	})
+}
