@@ -71,6 +71,7 @@ const (
 	EnvTaskID    = "SLURM_ARRAY_TASK_ID"
 	EnvTaskCount = "SLURM_ARRAY_TASK_COUNT"
 	EnvTaskMin   = "SLURM_ARRAY_TASK_MIN"
+	EnvTaskMax   = "SLURM_ARRAY_TASK_MAX"
 	EnvTaskStep  = "SLURM_ARRAY_TASK_STEP"
 )
 
@@ -78,24 +79,31 @@ const (
 // with getenv (os.Getenv in a program): Index = (ID − MIN) / STEP and Count =
 // COUNT, where MIN defaults to 0 and STEP to 1 when unset. found is false,
 // with no error, when SLURM_ARRAY_TASK_ID is unset (not a job-array task).
-// An array whose ids are not an evenly stepped range of COUNT ids (such as
-// --array=1,4,9) is an error, since its shards could not be told apart.
+// An array whose ids are not an evenly stepped range of COUNT ids is an
+// error in every task: Slurm gives --array=1,4,9 MIN 1, MAX 9, STEP 1 and
+// COUNT 3, and MIN + (COUNT−1)·STEP ≠ MAX tells it apart from a range.
 func ShardFromEnv(getenv func(string) string) (s Shard, found bool, err error) {
 	idText := getenv(EnvTaskID)
 	if idText == "" {
 		return Shard{}, false, nil
 	}
+	// num reads a variable; def is its value when unset, or required (the
+	// variable must be set) or optional (-1 when unset).
+	const required, optional = -1, -2
 	num := func(name string, def int) (int, error) {
 		v := getenv(name)
 		if v == "" {
-			if def < 0 {
+			switch def {
+			case required:
 				return 0, fmt.Errorf("grid: %s is set but %s is not (is this a job-array task?): %w", EnvTaskID, name, ErrShard)
+			case optional:
+				return -1, nil
 			}
 			return def, nil
 		}
 		n, err := strconv.Atoi(v)
-		if err != nil || n < 0 {
-			return 0, fmt.Errorf("grid: %s=%q is not a non-negative integer: %w", name, v, ErrShard)
+		if err != nil || n < 0 || n > 1<<40 {
+			return 0, fmt.Errorf("grid: %s=%q is not a non-negative integer up to 2⁴⁰: %w", name, v, ErrShard)
 		}
 		return n, nil
 	}
@@ -103,7 +111,7 @@ func ShardFromEnv(getenv func(string) string) (s Shard, found bool, err error) {
 	if err != nil {
 		return Shard{}, true, err
 	}
-	count, err := num(EnvTaskCount, -1)
+	count, err := num(EnvTaskCount, required)
 	if err != nil {
 		return Shard{}, true, err
 	}
@@ -115,8 +123,18 @@ func ShardFromEnv(getenv func(string) string) (s Shard, found bool, err error) {
 	if err != nil {
 		return Shard{}, true, err
 	}
+	hi, err := num(EnvTaskMax, optional)
+	if err != nil {
+		return Shard{}, true, err
+	}
 	if step < 1 {
 		return Shard{}, true, fmt.Errorf("grid: %s=%d: want at least 1: %w", EnvTaskStep, step, ErrShard)
+	}
+	if count < 1 || count > MaxShards {
+		return Shard{}, true, fmt.Errorf("grid: %s=%d: want 1–%d: %w", EnvTaskCount, count, MaxShards, ErrShard)
+	}
+	if hi >= 0 && count >= 1 && lo+(count-1)*step != hi {
+		return Shard{}, true, fmt.Errorf("grid: job array ids %d–%d with step %d are not %d evenly stepped ids (a list such as --array=1,4,9?); use a range such as --array=0-%d, or --shard: %w", lo, hi, step, count, count-1, ErrShard)
 	}
 	if id < lo || (id-lo)%step != 0 {
 		return Shard{}, true, fmt.Errorf("grid: task id %d is not min %d plus a multiple of step %d (use a range such as --array=0-%d, or --shard): %w", id, lo, step, max(count-1, 0), ErrShard)

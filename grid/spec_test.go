@@ -238,8 +238,11 @@ func TestShardFromEnv(t *testing.T) {
 	}{
 		{env(EnvTaskID, "2", EnvTaskCount, "4"), Shard{2, 4}},
 		{env(EnvTaskID, "0", EnvTaskCount, "4", EnvTaskMin, "0", EnvTaskStep, "1"), Shard{0, 4}},
-		{env(EnvTaskID, "4", EnvTaskCount, "4", EnvTaskMin, "1"), Shard{3, 4}},                   // --array=1-4
-		{env(EnvTaskID, "6", EnvTaskCount, "4", EnvTaskMin, "0", EnvTaskStep, "2"), Shard{3, 4}}, // --array=0-6:2
+		{env(EnvTaskID, "4", EnvTaskCount, "4", EnvTaskMin, "1"), Shard{3, 4}}, // --array=1-4 without MAX
+		// The variables Slurm 22.05 sets for --array=1-4 and --array=0-6:2 (seen on the test cluster).
+		{env(EnvTaskID, "4", EnvTaskCount, "4", EnvTaskMin, "1", EnvTaskMax, "4", EnvTaskStep, "1"), Shard{3, 4}},
+		{env(EnvTaskID, "6", EnvTaskCount, "4", EnvTaskMin, "0", EnvTaskMax, "6", EnvTaskStep, "2"), Shard{3, 4}},
+		{env(EnvTaskID, "2", EnvTaskCount, "4", EnvTaskMin, "0", EnvTaskMax, "6", EnvTaskStep, "2"), Shard{1, 4}},
 	}
 	for i, c := range good {
 		got, found, err := ShardFromEnv(c.env)
@@ -257,6 +260,11 @@ func TestShardFromEnv(t *testing.T) {
 		{env(EnvTaskID, "1"), "SLURM_ARRAY_TASK_COUNT is not"},
 		{env(EnvTaskID, "x", EnvTaskCount, "4"), `SLURM_ARRAY_TASK_ID="x"`},
 		{env(EnvTaskID, "1", EnvTaskCount, "-4"), "not a non-negative integer"},
+		{env(EnvTaskID, "1", EnvTaskCount, "0"), "SLURM_ARRAY_TASK_COUNT=0: want 1–100000"},
+		{env(EnvTaskID, "1", EnvTaskCount, "3", EnvTaskStep, "99999999999999999"), "up to 2⁴⁰"},
+		// What Slurm 22.05 sets for --array=1,4,9 (seen on the test cluster): every task refuses.
+		{env(EnvTaskID, "1", EnvTaskCount, "3", EnvTaskMin, "1", EnvTaskMax, "9", EnvTaskStep, "1"), "ids 1–9 with step 1 are not 3 evenly stepped ids"},
+		{env(EnvTaskID, "9", EnvTaskCount, "3", EnvTaskMin, "1", EnvTaskMax, "9", EnvTaskStep, "1"), "ids 1–9 with step 1 are not 3 evenly stepped ids"},
 		{env(EnvTaskID, "9", EnvTaskCount, "3", EnvTaskMin, "1"), "the ids must form a range of 3"}, // --array=1,4,9
 		{env(EnvTaskID, "0", EnvTaskCount, "3", EnvTaskMin, "1"), "is not min 1 plus a multiple"},
 		{env(EnvTaskID, "3", EnvTaskCount, "3", EnvTaskMin, "0", EnvTaskStep, "2"), "is not min 0 plus a multiple of step 2"},
