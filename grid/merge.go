@@ -40,7 +40,7 @@ func Merge(out string, parts ...string) (*PartInfo, error) {
 		defer f.Close()
 		r, err := newPartReader(f, p)
 		if err != nil {
-			return nil, fmt.Errorf("grid: merge: %w", err)
+			return nil, mergeErr(err)
 		}
 		readers[i] = r
 	}

@@ -170,7 +170,6 @@ func (s *Spec) check() error {
 	}
 	s.values = make([][]float64, len(s.Axes))
 	s.names = make([]string, len(s.Axes))
-	total := 1
 	for i := range s.Axes {
 		a := &s.Axes[i]
 		vals, err := a.expand()
@@ -182,12 +181,16 @@ func (s *Spec) check() error {
 			return fmt.Errorf("axis %d: a second %s axis: %w", i+1, name, ErrSpec)
 		}
 		s.values[i], s.names[i] = vals, name
-		if total > MaxPoints/len(vals) {
-			return fmt.Errorf("the axes give more than %d points (%s): %w", MaxPoints, s.sizes(i+1), ErrSpec)
-		}
-		total *= len(vals)
 	}
-	s.points = total
+	// Each axis is bounded, so the product fits a float64 well enough to say how big it is.
+	total := 1.0
+	for _, v := range s.values {
+		total *= float64(len(v))
+	}
+	if total > MaxPoints {
+		return fmt.Errorf("the axes give %.4g points (%s), more than the limit %d: %w", total, s.sizes(len(s.values)), MaxPoints, ErrSpec)
+	}
+	s.points = int(total)
 	canon, err := json.Marshal(s)
 	if err != nil { // cannot happen: every value is finite
 		return fmt.Errorf("canonical form: %w", err)

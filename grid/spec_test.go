@@ -101,7 +101,7 @@ func TestDecodeSpecErrors(t *testing.T) {
 		{"element on velocity", axis(`{"quantity":"velocity","element":"Sr","values":[0.1]}`), `"element" is only for`},
 		{"too many values", axis(`{"quantity":"days","from":1,"to":2,"steps":100001}`), "steps 100001"},
 		{"too many points", axis(`{"quantity":"velocity","from":0.01,"to":0.99,"steps":1000},{"quantity":"temperature","from":1000,"to":9000,"steps":1000},{"quantity":"days","from":1,"to":30,"steps":20}`),
-			"more than 10000000 points (1000 × 1000 × 20)"},
+			"the axes give 2e+07 points (1000 × 1000 × 20), more than the limit 10000000"},
 		{"syntax", "{\"format\": \"broadline-grid/1\",\n  \"axes\": [}", "line 2, column 12"},
 		{"wrong type", axis(`{"quantity":"velocity","values":"0.1"}`), "cannot unmarshal"},
 		{"huge number", axis(`{"quantity":"velocity","values":[1e400]}`), "cannot unmarshal"},
