@@ -161,7 +161,7 @@ EOF
     [ "$st" = idle ] && break
     sleep 0.5
   done
-  [ "$st" = idle ] || fail "node '$H' not idle after ${TIMEOUT}s (state '$st')"
+  [ "$st" = idle ] || fail "node '$H' not idle after ${TIMEOUT}s (state '$st'); if another cluster holds port $CTLD_PORT or $SLURMD_PORT, set SLURM_CTLD_PORT and SLURMD_PORT"
   sinfo
   echo "slurm-local: up; clients need: export SLURM_CONF=$CONF"
 }
