@@ -69,6 +69,13 @@ type Overlay = fit.Overlay
 // without, when > 0, removes the lines of that element (a knock-out; the
 // plasma keeps the element).
 func (b *Bench) Compute(ctx context.Context, m Model, without int) (*Overlay, error) {
+	return b.ComputeAt(ctx, m, without, 0)
+}
+
+// ComputeAt is Compute with the model's time since explosion set to days
+// instead of the epoch's (days ≤ 0: the epoch's), still compared with the
+// epoch's spectrum: for grids over the age.
+func (b *Bench) ComputeAt(ctx context.Context, m Model, without int, days float64) (*Overlay, error) {
 	if err := m.Validate(b.Data); err != nil {
 		return nil, err
 	}
@@ -84,7 +91,11 @@ func (b *Bench) Compute(ctx context.Context, m Model, without int) (*Overlay, er
 	if without > 0 {
 		set.Without = []int{without}
 	}
-	ov, err := fit.CompareModel(ctx, sm, comp, b.Data.Ejecta(m), set, b.Data.DistanceMpc*spectra.Megaparsec, b.Observed[m.Epoch], b.Data.ResolvingPower)
+	ej := b.Data.Ejecta(m)
+	if days > 0 {
+		ej.Time = days * spectra.Day
+	}
+	ov, err := fit.CompareModel(ctx, sm, comp, ej, set, b.Data.DistanceMpc*spectra.Megaparsec, b.Observed[m.Epoch], b.Data.ResolvingPower)
 	if err != nil {
 		return nil, err
 	}

@@ -144,3 +144,28 @@ func (c Composition) Text() string {
 	}
 	return strings.Join(parts, ", ")
 }
+
+// WithFraction returns c with element sym at mass fraction x (0 < x < 1)
+// and the other elements' normalised fractions scaled by 1 − x, so their
+// ratios stay as they were. An element not in c is added.
+func (c Composition) WithFraction(sym string, x float64) (Composition, error) {
+	e, err := linelists.ElementBySymbol(sym)
+	if err != nil {
+		return Composition{}, fmt.Errorf("unknown element %q", sym)
+	}
+	if !(x > 0 && x < 1) {
+		return Composition{}, fmt.Errorf("mass fraction of %s %g: want 0 < X < 1", e.Symbol, x)
+	}
+	syms, xs := c.Fractions()
+	var parts []string
+	for i, s := range syms {
+		if s != e.Symbol {
+			parts = append(parts, s+"="+strconv.FormatFloat(xs[i]*(1-x), 'g', -1, 64))
+		}
+	}
+	if len(parts) == 0 {
+		return Composition{}, fmt.Errorf("mass fraction of %s %g: the composition has no other element to make up the rest", e.Symbol, x)
+	}
+	parts = append(parts, e.Symbol+"="+strconv.FormatFloat(x, 'g', -1, 64))
+	return ParseComposition(strings.Join(parts, ","))
+}

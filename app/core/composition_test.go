@@ -66,3 +66,27 @@ func TestBadCompositionNeverKept(t *testing.T) {
 		t.Errorf("a saved session does not open again: %v", err)
 	}
 }
+
+// TestWithFraction: setting Nd to 0.2 in Sr:Ca = 3:1 leaves Sr 0.6, Ca 0.2
+// (hand-worked: 0.75·0.8, 0.25·0.8); bad values are refused.
+func TestWithFraction(t *testing.T) {
+	c, err := mustComp(t, "Sr=3,Ca=1").WithFraction("nd", 0.2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	syms, xs := c.Fractions()
+	want := map[string]float64{"Sr": 0.6, "Ca": 0.2, "Nd": 0.2}
+	for i, s := range syms {
+		if math.Abs(xs[i]-want[s]) > 1e-12 {
+			t.Errorf("%s %g, want %g", s, xs[i], want[s])
+		}
+	}
+	for _, x := range []float64{0, 1, -0.1, math.NaN()} {
+		if _, err := c.WithFraction("Nd", x); err == nil {
+			t.Errorf("fraction %g accepted", x)
+		}
+	}
+	if _, err := mustComp(t, "Nd=1").WithFraction("Nd", 0.5); err == nil {
+		t.Error("a one-element mix given a fraction below 1 was accepted")
+	}
+}
