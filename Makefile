@@ -4,7 +4,7 @@ GO      ?= go
 BIN     := bin/broadline
 # Packages without cgo run under the race detector; the app package (fyne,
 # cgo) runs without it, since a race build recompiles the C parts (~4 min).
-PURE    := ./linelists/... ./spectra/... ./opacity/... ./tools/...
+PURE    := ./physics/... ./linelists/... ./spectra/... ./opacity/... ./tools/...
 export LANG ?= en_US.UTF-8
 
 .PHONY: all deps build run test bench fmt screenshot clean

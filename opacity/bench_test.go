@@ -12,7 +12,7 @@ import (
 	"time"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // benchElements are ten r-process-like elements; with stages I–III they
@@ -79,7 +79,7 @@ func BenchmarkExpansion(b *testing.B) {
 			for b.Loop() {
 				p := benchPlasma(b, 4000+float64(i%50)*20)
 				i++
-				if _, err := ls.Expansion(ctx, p, spectra.Day, g, workers); err != nil {
+				if _, err := ls.Expansion(ctx, p, physics.Day, g, workers); err != nil {
 					b.Fatal(err)
 				}
 			}
@@ -155,7 +155,7 @@ func BenchmarkFloorRatio(b *testing.B) {
 		t1, c1 := time.Now(), cpuTime()
 		p := benchPlasma(b, 4000+float64(i%50)*20)
 		i++
-		if _, err := ls.Expansion(ctx, p, spectra.Day, g, workers); err != nil {
+		if _, err := ls.Expansion(ctx, p, physics.Day, g, workers); err != nil {
 			b.Fatal(err)
 		}
 		dx := time.Since(t1)

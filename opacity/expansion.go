@@ -13,6 +13,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"broadline/linelists"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -141,7 +142,7 @@ func (ls *Lines) Expansion(ctx context.Context, p *Plasma, t float64, g Grid, wo
 	if err != nil {
 		return nil, err
 	}
-	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, spectra.HCOverK/p.Temperature)
+	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, physics.HCOverK/p.Temperature)
 }
 
 // ExpansionFromDepths is ExpansionOpacity for optical depths tau already
@@ -209,7 +210,7 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 	chunks = append(chunks, nb)
 	nc := len(chunks) - 1
 	workers = min(max(workers, 1), runtime.GOMAXPROCS(0), max(nc, 1))
-	scale := 1 / (p.Density * spectra.SpeedOfLight * t)
+	scale := 1 / (p.Density * physics.SpeedOfLight * t)
 	var next atomic.Int64
 	var unmodelled atomic.Int64
 	var wg sync.WaitGroup

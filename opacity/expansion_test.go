@@ -11,6 +11,7 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"broadline/linelists"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -63,7 +64,7 @@ func binThin(st *linelists.Store, p *Plasma, t float64, g Grid) []float64 {
 	for i, lam := range st.Wavelength {
 		for k := 0; k < g.Bins(); k++ {
 			if g.Edges[k] <= lam && lam < g.Edges[k+1] {
-				out[k] += directTau(st, p, i, t) * lam / (p.Density * spectra.SpeedOfLight * t * g.Width(k))
+				out[k] += directTau(st, p, i, t) * lam / (p.Density * physics.SpeedOfLight * t * g.Width(k))
 			}
 		}
 	}
@@ -83,7 +84,7 @@ func TestExpansionLimits(t *testing.T) {
 	}
 	lev := PlasmaLevelDensities(nil, st, p)
 	tau := make([]float64, st.Len())
-	if err := Sobolev(ctx, tau, st, lev, p.Temperature, spectra.Day, 1); err != nil {
+	if err := Sobolev(ctx, tau, st, lev, p.Temperature, physics.Day, 1); err != nil {
 		t.Fatal(err)
 	}
 	tmax, tmin := 0.0, math.Inf(1)
@@ -95,7 +96,7 @@ func TestExpansionLimits(t *testing.T) {
 	// Thin limit: scale t so that every τ ≤ 1e-9; then κ is the summed
 	// Sobolev line opacity (π e²/mₑc) Σ gf n_l/g_l λ² stim/(ρ c Δλ), in
 	// which t cancels (REFERENCES.md [calc]).
-	tThin := spectra.Day * 1e-9 / tmax
+	tThin := physics.Day * 1e-9 / tmax
 	thin, err := ExpansionOpacity(ctx, st, p, tThin, g, 2)
 	if err != nil {
 		t.Fatal(err)
@@ -123,7 +124,7 @@ func TestExpansionLimits(t *testing.T) {
 
 	// Thick limit: scale t so that every τ ≥ 100; then κ = Σ λ_l/(ρ c t Δλ),
 	// i.e. (number of lines in bin)·⟨λ⟩/(ρ c t Δλ) (REFERENCES.md [calc]).
-	tThick := spectra.Day * 100 / tmin
+	tThick := physics.Day * 100 / tmin
 	thick, err := ExpansionOpacity(ctx, st, p, tThick, g, 2)
 	if err != nil {
 		t.Fatal(err)
@@ -136,7 +137,7 @@ func TestExpansionLimits(t *testing.T) {
 				n++
 			}
 		}
-		want := float64(n) * (sum / max(float64(n), 1)) / (p.Density * spectra.SpeedOfLight * tThick * g.Width(k))
+		want := float64(n) * (sum / max(float64(n), 1)) / (p.Density * physics.SpeedOfLight * tThick * g.Width(k))
 		if !scalar.EqualWithinAbsOrRel(thick.Kappa[k], want, 1e-300, 1e-12) {
 			t.Errorf("thick bin %d: κ = %.12g, N λ/(ρctΔλ) = %.12g (%d lines)", k, thick.Kappa[k], want, n)
 		}
@@ -145,15 +146,15 @@ func TestExpansionLimits(t *testing.T) {
 	// The fused computation equals binning Sobolev's depths; rows add to κ;
 	// one worker and two give identical bits.
 	for _, grid := range []Grid{g, must(LogGrid(3500, 26000, 333))} {
-		a, err := ExpansionOpacity(ctx, st, p, spectra.Day, grid, 1)
+		a, err := ExpansionOpacity(ctx, st, p, physics.Day, grid, 1)
 		if err != nil {
 			t.Fatal(err)
 		}
-		b, err := ExpansionFromDepths(ctx, st, tau, p, spectra.Day, grid, 2)
+		b, err := ExpansionFromDepths(ctx, st, tau, p, physics.Day, grid, 2)
 		if err != nil {
 			t.Fatal(err)
 		}
-		c, err := ExpansionOpacity(ctx, st, p, spectra.Day, grid, 2)
+		c, err := ExpansionOpacity(ctx, st, p, physics.Day, grid, 2)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -259,7 +260,7 @@ func TestGrids(t *testing.T) {
 	}
 	p, _ := Solve(mustComp(t, "Ca=1"), 1e-13, 5000, nil)
 	st := makeStore([]testLine{{linelists.Species{Z: 20, Charge: 1}, 5000, 0, 0, 2}})
-	if _, err := ExpansionOpacity(context.Background(), st, p, spectra.Day, Grid{Edges: []float64{5, 4}}, 1); !errors.Is(err, ErrGrid) {
+	if _, err := ExpansionOpacity(context.Background(), st, p, physics.Day, Grid{Edges: []float64{5, 4}}, 1); !errors.Is(err, ErrGrid) {
 		t.Errorf("descending edges: %v", err)
 	}
 }
@@ -384,7 +385,7 @@ func TestLinesVector(t *testing.T) {
 	for v, w := range lanes {
 		vecLanes = w
 		for _, T := range []float64{10, 1000, 5000, 1e5, 1e7, 1e10} {
-			hck := spectra.HCOverK / T
+			hck := physics.HCOverK / T
 			dst := make([]float64, n)
 			for i := range dst {
 				dst[i] = -1
@@ -431,7 +432,7 @@ func TestExpansionPortable(t *testing.T) {
 	x := make([]*Expansion, len(lanes))
 	for v, w := range lanes {
 		vecLanes = w
-		if x[v], err = ls.Expansion(ctx, p, spectra.Day, g, 2); err != nil {
+		if x[v], err = ls.Expansion(ctx, p, physics.Day, g, 2); err != nil {
 			t.Fatal(err)
 		}
 	}

@@ -9,7 +9,7 @@ import (
 	"sync/atomic"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // SpeciesFactors writes N_ion/U (cm⁻³) for each entry of st.SpeciesTable
@@ -36,7 +36,7 @@ func SpeciesFactors(dst []float64, st *linelists.Store, p *Plasma) []float64 {
 func BoltzmannFactors(dst []float64, st *linelists.Store, T float64) []float64 {
 	e := st.Levels.Energy
 	dst = grow(dst, len(e))
-	beta := spectra.ElectronVolt / (spectra.Boltzmann * T) // 1/kT in eV⁻¹
+	beta := physics.ElectronVolt / (physics.Boltzmann * T) // 1/kT in eV⁻¹
 	for l, el := range e {
 		dst[l] = fastExp(-el * beta)
 	}
@@ -126,7 +126,7 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 		return err
 	}
 	lev := levelTerms(nil, levelDensity, t)
-	hck := spectra.HCOverK / T
+	hck := physics.HCOverK / T
 	return parallel(ctx, n, workers, func(lo, hi int) {
 		var c stimCarry
 		fusedDepths(dst[lo:hi], st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi], lev, hck, &c)
@@ -137,7 +137,7 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 // τ = λ[Å]·gf·lev·stim.
 func levelTerms(dst, levelDensity []float64, t float64) []float64 {
 	dst = grow(dst, len(levelDensity))
-	c := spectra.ClassicalLineCrossSection * spectra.Angstrom * t
+	c := physics.ClassicalLineCrossSection * physics.Angstrom * t
 	for l, d := range levelDensity {
 		dst[l] = c * d
 	}
@@ -153,11 +153,11 @@ func plasmaLevelTerms(ctx context.Context, st *linelists.Store, p *Plasma, t flo
 		panic(fmt.Sprintf("opacity: %d level species for %d levels", len(lv.Species), len(lv.Energy)))
 	}
 	sf := SpeciesFactors(nil, st, p)
-	c := spectra.ClassicalLineCrossSection * spectra.Angstrom * t
+	c := physics.ClassicalLineCrossSection * physics.Angstrom * t
 	for i := range sf {
 		sf[i] *= c
 	}
-	beta := spectra.ElectronVolt / (spectra.Boltzmann * p.Temperature)
+	beta := physics.ElectronVolt / (physics.Boltzmann * p.Temperature)
 	dst := make([]float64, len(lv.Energy))
 	err := parallel(ctx, len(dst), workers, func(lo, hi int) {
 		for l, s := range lv.Species[lo:hi] {
