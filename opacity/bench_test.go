@@ -12,6 +12,7 @@ import (
 	"time"
 
 	"broadline/linelists"
+	"broadline/opacity/internal/kernels"
 	"broadline/physics"
 )
 
@@ -55,12 +56,15 @@ func useBenchLanes(b *testing.B) {
 	if w < 0 {
 		return
 	}
-	if w != 0 && w != 4 && w != 8 || w > vecLanes {
-		b.Fatalf("-lanes %d: this processor has vector loops of up to %d lanes (0, 4 or 8 are possible)", w, vecLanes)
+	own := kernels.Lanes()
+	if err := kernels.SetLanes(w); err != nil {
+		b.Fatalf("-lanes: %v", err)
 	}
-	own := vecLanes
-	vecLanes = w
-	b.Cleanup(func() { vecLanes = own })
+	b.Cleanup(func() {
+		if err := kernels.SetLanes(own); err != nil {
+			b.Error(err)
+		}
+	})
 }
 
 // BenchmarkExpansion times the expansion opacity at a new temperature each

@@ -9,6 +9,7 @@ import (
 	"sync/atomic"
 
 	"broadline/linelists"
+	"broadline/opacity/internal/kernels"
 	"broadline/physics"
 )
 
@@ -38,7 +39,7 @@ func BoltzmannFactors(dst []float64, st *linelists.Store, T float64) []float64 {
 	dst = grow(dst, len(e))
 	beta := physics.ElectronVolt / (physics.Boltzmann * T) // 1/kT in eV⁻¹
 	for l, el := range e {
-		dst[l] = fastExp(-el * beta)
+		dst[l] = kernels.Exp(-el * beta)
 	}
 	return dst
 }
@@ -84,7 +85,7 @@ func NewLines(ctx context.Context, st *linelists.Store, workers int) (*Lines, er
 	ls := &Lines{Store: st, GF: make([]float64, n)}
 	err := parallel(ctx, n, workers, func(lo, hi int) {
 		for i, x := range st.LogGF[lo:hi] {
-			ls.GF[lo+i] = fastExp(float64(x) * math.Ln10)
+			ls.GF[lo+i] = kernels.Exp(float64(x) * math.Ln10)
 		}
 	})
 	if err != nil {
@@ -112,7 +113,7 @@ func Sobolev(ctx context.Context, dst []float64, st *linelists.Store, levelDensi
 // Sobolev is the package-level Sobolev for prepared lines. The per-level
 // factors are computed once per level; per line it takes three products and
 // the stimulated-emission factor, carried from line to line along the
-// sorted wavelengths (relative accuracy ~1e-13; see stimRefresh).
+// sorted wavelengths (relative accuracy ~1e-13; see kernels.Depths).
 func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []float64, T, t float64, workers int) error {
 	st := ls.Store
 	n := checkStore(st)
@@ -128,8 +129,8 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 	lev := levelTerms(nil, levelDensity, t)
 	hck := physics.HCOverK / T
 	return parallel(ctx, n, workers, func(lo, hi int) {
-		var c stimCarry
-		fusedDepths(dst[lo:hi], st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi], lev, hck, &c)
+		var c kernels.Carry
+		kernels.Depths(dst[lo:hi], st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi], lev, hck, &c)
 	})
 }
 
@@ -161,7 +162,7 @@ func plasmaLevelTerms(ctx context.Context, st *linelists.Store, p *Plasma, t flo
 	dst := make([]float64, len(lv.Energy))
 	err := parallel(ctx, len(dst), workers, func(lo, hi int) {
 		for l, s := range lv.Species[lo:hi] {
-			dst[lo+l] = sf[s] * fastExp(-lv.Energy[lo+l]*beta)
+			dst[lo+l] = sf[s] * kernels.Exp(-lv.Energy[lo+l]*beta)
 		}
 	})
 	return dst, err
