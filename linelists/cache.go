@@ -30,8 +30,12 @@ import (
 // allocated; a wrong magic, version, identity, size or checksum, or an
 // index out of range, makes the cache unusable (ErrCache) and it is rebuilt.
 const (
-	cacheMagic      = "BLLINES\x00"
-	cacheVersion    = 1
+	cacheMagic = "BLLINES\x00"
+	// cacheVersion 2: the report's medium is written by name
+	// (physics.Medium), and air wavelengths are converted by
+	// physics.AirToVacuum, which can differ from the former conversion in
+	// the last bit.
+	cacheVersion    = 2
 	cacheHeaderSize = 96
 	cacheMaxReport  = 1 << 20
 	cacheHeadBytes  = 64 << 10

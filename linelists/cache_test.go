@@ -10,6 +10,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"broadline/physics"
 )
 
 func writeTemp(t *testing.T, name, content string) string {
@@ -51,7 +53,7 @@ func TestCacheRoundTrip(t *testing.T) {
 		t.Errorf("second load: cached=%v warnings %v", r2.Files[0].Cached, r2.Warnings)
 	}
 	sameStore(t, s1, s2)
-	if !reflect.DeepEqual(r1.Files[0].Meta, r2.Files[0].Meta) || r2.Files[0].Medium != Air || r2.Files[0].Rows != 4 {
+	if !reflect.DeepEqual(r1.Files[0].Meta, r2.Files[0].Meta) || r2.Files[0].Medium != physics.Air || r2.Files[0].Rows != 4 {
 		t.Errorf("report not restored: %+v", r2.Files[0])
 	}
 	// Partition functions work on the loaded store (grouped levels).
@@ -117,7 +119,7 @@ func TestCacheStaleAndCorrupt(t *testing.T) {
 		t.Errorf("changed source not re-read: log gf %v", s.LogGF[1])
 	}
 	// Other read options make the cache stale too.
-	_, rep, err = Load([]string{src}, Options{Medium: Air})
+	_, rep, err = Load([]string{src}, Options{Medium: physics.Air})
 	if err != nil || rep.Files[0].Cached {
 		t.Errorf("new options: cached=%v err %v", rep.Files[0].Cached, err)
 	}

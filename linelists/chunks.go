@@ -8,6 +8,8 @@ import (
 	"io"
 	"sync"
 	"sync/atomic"
+
+	"broadline/physics"
 )
 
 // chunkSize is the size of the blocks of rows parsed at a time.
@@ -18,7 +20,7 @@ const chunkSize = 1 << 20
 type rowParser struct {
 	cm     colMap
 	fixed  Species
-	medium Medium
+	medium physics.Medium
 	comma  bool
 	filter *Filter
 	want   map[Species]bool
@@ -68,8 +70,8 @@ func (rp *rowParser) parseLine(line []byte, lineNo int, res *chunkResult) {
 		perr(col+1, err)
 		return
 	}
-	if rp.medium == Air {
-		l.Wavelength = airToVacuum(l.Wavelength)
+	if rp.medium == physics.Air {
+		l.Wavelength = physics.AirToVacuum(l.Wavelength)
 	}
 	if f := rp.filter; f.active() {
 		switch {

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+
+	"broadline/physics"
 )
 
 // Field is a quantity a line-list column can hold.
@@ -67,7 +69,7 @@ func (u Unit) factor() float64 {
 	case UnitMicron:
 		return 1e4
 	case UnitInvCm:
-		return invCmToEV
+		return physics.InvCmToEV
 	}
 	return 1
 }
@@ -173,7 +175,7 @@ type Import struct {
 	Species Species
 	// Medium of the wavelengths (vacuum unless the file's "# medium:" says
 	// otherwise, or this is set).
-	Medium Medium
+	Medium physics.Medium
 	// HeaderRow says that the first non-comment row names the columns (it
 	// is then skipped). Required when a column is selected by Name.
 	HeaderRow bool
@@ -242,35 +244,4 @@ func ParseColumnMap(s string) ([]ColumnSpec, error) {
 		return nil, fmt.Errorf("%w: empty column mapping", ErrHeader)
 	}
 	return out, nil
-}
-
-// Medium is the medium wavelengths in a file are measured in.
-type Medium uint8
-
-// Media. The zero value means "not said" (vacuum, unless the file says).
-const (
-	MediumDefault Medium = iota
-	Vacuum
-	Air
-)
-
-func (m Medium) String() string {
-	switch m {
-	case Vacuum:
-		return "vacuum"
-	case Air:
-		return "air"
-	}
-	return "vacuum (default)"
-}
-
-// ParseMedium reads "vacuum" or "air" (any case).
-func ParseMedium(s string) (Medium, error) {
-	switch strings.ToLower(strings.TrimSpace(s)) {
-	case "vacuum", "vac":
-		return Vacuum, nil
-	case "air":
-		return Air, nil
-	}
-	return MediumDefault, fmt.Errorf("%w: medium %q: want vacuum or air", ErrHeader, s)
 }

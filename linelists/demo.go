@@ -7,6 +7,8 @@ import (
 	"math/rand/v2"
 	"slices"
 	"strings"
+
+	"broadline/physics"
 )
 
 // This file generates the invented line lists of the built-in demo. They
@@ -145,7 +147,7 @@ func RealDemoLines() []RealLine { return slices.Clone(realLines) }
 const (
 	demoMinWavelength = 3500
 	demoMaxWavelength = 25000
-	hcEVAngstrom      = 1e8 * invCmToEV // λ[Å] = hc/ΔE[eV]
+	hcEVAngstrom      = 1e8 * physics.InvCmToEV // λ[Å] = hc/ΔE[eV]
 	// demoGFWavelength is where the invented log gf has the stage's mean;
 	// it falls as log10(5000 Å/λ) on either side.
 	demoGFWavelength = 5000
@@ -182,9 +184,9 @@ func Demo(el DemoElement, seed uint64) (*Store, error) {
 			continue
 		}
 		b.AddLevel(sp, 0, float32(mustGround(sp)))
-		b.AddLevel(sp, rl.LowerCm*invCmToEV, rl.LowerG)
-		b.AddLevel(sp, rl.UpperCm*invCmToEV, rl.UpperG)
-		b.Add(Line{Wavelength: rl.Wavelength, LogGF: rl.LogGF, Species: sp, LowerEnergy: rl.LowerCm * invCmToEV, LowerG: rl.LowerG})
+		b.AddLevel(sp, rl.LowerCm*physics.InvCmToEV, rl.LowerG)
+		b.AddLevel(sp, rl.UpperCm*physics.InvCmToEV, rl.UpperG)
+		b.Add(Line{Wavelength: rl.Wavelength, LogGF: rl.LogGF, Species: sp, LowerEnergy: rl.LowerCm * physics.InvCmToEV, LowerG: rl.LowerG})
 	}
 	s, rep := b.Build()
 	if rep.Duplicates > 0 {

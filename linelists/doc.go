@@ -22,7 +22,9 @@
 // Conventions:
 //   - Wavelengths in the store are vacuum wavelengths in ångström, sorted
 //     ascending. Air wavelengths are converted when a file is read, with the
-//     IAU standard formula (Morton 2000, ApJS 130, 403).
+//     IAU standard formula (Morton 2000, ApJS 130, 403) of
+//     physics.AirToVacuum. The medium of a file or an option is a
+//     physics.Medium (MediumDefault: not said).
 //   - Energies are in eV, measured from the ground level of their own ion.
 //   - A species is an element and an ion stage; stage I is the neutral atom,
 //     stage II singly ionised, and so on. Species.Charge counts from 0.
@@ -32,7 +34,9 @@
 //     level. Both are lower bounds when the level set is incomplete; with no
 //     levels at all U is the ground weight and PartitionFunction says
 //     complete = false. LevelSourceOf tells which case applies.
-//   - This package imports no other package of broadline.
+//   - This package imports no other package of broadline except the leaf
+//     broadline/physics (constants: cm⁻¹ → eV is physics.InvCmToEV, k in
+//     eV K⁻¹ physics.BoltzmannEV).
 //   - Bad data returns an error (a *ParseError naming file:line and column for
 //     files, wrapping one of the Err* sentinels); a programming mistake
 //     panics with a "linelists: ..." message.

@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 func TestReadLevels(t *testing.T) {
@@ -35,8 +37,8 @@ func TestReadLevels(t *testing.T) {
 	if len(s.Levels.Energy) != 6 {
 		t.Errorf("%d levels, want the file's 5 plus 1 unmatched", len(s.Levels.Energy))
 	}
-	if e := s.Levels.Energy[s.Lower[0]]; !scalar.EqualWithinAbs(e/invCmToEV, 13650.19, 1e-6) {
-		t.Errorf("the 8500 line's lower level is at %v cm⁻¹, want the file's 13650.19", e/invCmToEV)
+	if e := s.Levels.Energy[s.Lower[0]]; !scalar.EqualWithinAbs(e/physics.InvCmToEV, 13650.19, 1e-6) {
+		t.Errorf("the 8500 line's lower level is at %v cm⁻¹, want the file's 13650.19", e/physics.InvCmToEV)
 	}
 	if s.LevelSourceOf(MustSpecies("Ca II")) != FileLevels {
 		t.Error("level source is not the file")

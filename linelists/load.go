@@ -9,6 +9,8 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+
+	"broadline/physics"
 )
 
 // CacheMode says whether Load uses the binary cache.
@@ -28,7 +30,7 @@ type Options struct {
 	// this column mapping.
 	Import *Import
 	// Medium of the wavelengths when a file does not say.
-	Medium Medium
+	Medium physics.Medium
 	// Species of every line, for files in our format without a species
 	// column.
 	Species Species

@@ -3,6 +3,8 @@ package linelists
 import (
 	"fmt"
 	"math"
+
+	"broadline/physics"
 )
 
 // LevelSource says where the levels a store knows for a species came from,
@@ -125,7 +127,7 @@ func (s *Store) PartitionFunctions(sp Species, temps, dst []float64) (complete b
 	summed := 0
 	if ok {
 		for k, T := range temps {
-			beta := -1 / (boltzmannEV * T)
+			beta := -1 / (physics.BoltzmannEV * T)
 			sum := 0.0
 			for l := lo; l < hi; l++ {
 				if scan && int(s.Levels.Species[l]) != i {

@@ -5,6 +5,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 // levelSet is a small sourced level set: energies in cm⁻¹, weights 2J+1.
@@ -29,7 +31,7 @@ func hydrogen() levelSet {
 	ls.sp = "H I"
 	for n := 1; n <= 5; n++ {
 		ev := 13.598434599702 * (1 - 1/float64(n*n))
-		ls.e = append(ls.e, ev/invCmToEV)
+		ls.e = append(ls.e, ev/physics.InvCmToEV)
 		ls.g = append(ls.g, float32(2*n*n))
 	}
 	return ls
@@ -44,7 +46,7 @@ func storeOf(sets ...levelSet) *Store {
 		// Interleave species on purpose: the table need not be grouped.
 		for j := range ls.e {
 			s.Levels.Species = append(s.Levels.Species, uint16(i))
-			s.Levels.Energy = append(s.Levels.Energy, ls.e[j]*invCmToEV)
+			s.Levels.Energy = append(s.Levels.Energy, ls.e[j]*physics.InvCmToEV)
 			s.Levels.G = append(s.Levels.G, ls.g[j])
 		}
 	}

@@ -12,6 +12,8 @@ import (
 	"strconv"
 	"strings"
 	"unsafe"
+
+	"broadline/physics"
 )
 
 // Bounds on what a reader accepts, so that no input allocates without
@@ -33,7 +35,7 @@ type ReadOptions struct {
 	Import *Import
 	// Medium of the wavelengths when the file does not say ("# medium:").
 	// If both say and disagree, reading fails.
-	Medium Medium
+	Medium physics.Medium
 	// Species, when not the zero value, is the species of every line of a
 	// file in our format that has no species column (the import path has
 	// Import.Species).
@@ -83,14 +85,14 @@ type KeyValue struct{ Key, Value string }
 // FileReport says what reading one file did.
 type FileReport struct {
 	Name    string
-	Medium  Medium     // medium the wavelengths were given in
-	Meta    []KeyValue // "# key: value" header lines, in order (medium included)
-	Columns []string   // the columns read, as field_unit
-	Ignored []string   // import path: columns present but not mapped
-	Rows    int        // data rows read
-	Added   int        // lines added
-	Skipped Skipped    // lines left out on purpose
-	Cached  bool       // loaded from the binary cache
+	Medium  physics.Medium // medium the wavelengths were given in
+	Meta    []KeyValue     // "# key: value" header lines, in order (medium included)
+	Columns []string       // the columns read, as field_unit
+	Ignored []string       // import path: columns present but not mapped
+	Rows    int            // data rows read
+	Added   int            // lines added
+	Skipped Skipped        // lines left out on purpose
+	Cached  bool           // loaded from the binary cache
 	// Duplicates and GroundAdded as in Report, for this file alone (set
 	// by Load).
 	Duplicates  int
@@ -163,7 +165,7 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 		b.reserve(int(min(n/40, 1<<30)))
 	}
 	imp := opts.Import
-	fileMedium := MediumDefault
+	fileMedium := physics.MediumDefault
 	var cm colMap
 	haveHeader := false
 	comma := false
@@ -181,7 +183,7 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 		}
 	}
 	wantSpecies := speciesSet(opts.Filter.Species)
-	medium := MediumDefault
+	medium := physics.MediumDefault
 	started := false
 	for {
 		raw, last, err := nextLine(br, lineNo == 0)
@@ -208,9 +210,9 @@ func (b *Builder) read(r io.Reader, opts ReadOptions) (FileReport, error) {
 					}
 					fr.Meta = append(fr.Meta, KeyValue{k, v})
 					if strings.EqualFold(k, "medium") {
-						m, err := ParseMedium(v)
+						m, err := physics.ParseMedium(v)
 						if err != nil {
-							return fr, perr(lineNo, 0, err)
+							return fr, perr(lineNo, 0, fmt.Errorf("%w: %w", ErrHeader, err))
 						}
 						fileMedium = m
 					}
@@ -306,20 +308,20 @@ func inputSize(r io.Reader) int64 {
 	return 0
 }
 
-func pickMedium(file Medium, opts ReadOptions, imp *Import) (Medium, error) {
+func pickMedium(file physics.Medium, opts ReadOptions, imp *Import) (physics.Medium, error) {
 	asked := opts.Medium
-	if imp != nil && imp.Medium != MediumDefault {
+	if imp != nil && imp.Medium != physics.MediumDefault {
 		asked = imp.Medium
 	}
 	switch {
-	case file != MediumDefault && asked != MediumDefault && file != asked:
+	case file != physics.MediumDefault && asked != physics.MediumDefault && file != asked:
 		return 0, fmt.Errorf("%w: the file says \"# medium: %v\" but %v was asked for", ErrHeader, file, asked)
-	case file != MediumDefault:
+	case file != physics.MediumDefault:
 		return file, nil
-	case asked != MediumDefault:
+	case asked != physics.MediumDefault:
 		return asked, nil
 	}
-	return Vacuum, nil
+	return physics.Vacuum, nil
 }
 
 // keyValue recognises "key: value" after the '#': the key is a word of

@@ -9,6 +9,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 const sample = `# A test list in our format.
@@ -33,7 +35,7 @@ func TestReadOurFormat(t *testing.T) {
 		t.Fatalf("%d lines, want 4", s.Len())
 	}
 	fr := rep.Files[0]
-	if fr.Medium != Air || fr.Rows != 4 || fr.Added != 4 {
+	if fr.Medium != physics.Air || fr.Rows != 4 || fr.Added != 4 {
 		t.Errorf("report %+v", fr)
 	}
 	if len(fr.Meta) != 3 || fr.Meta[1] != (KeyValue{"source", "typed for this test"}) {
@@ -216,7 +218,7 @@ func TestReadImport(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	imp := &Import{Columns: cols, Species: MustSpecies("Ca II"), HeaderRow: true, Medium: Vacuum}
+	imp := &Import{Columns: cols, Species: MustSpecies("Ca II"), HeaderRow: true, Medium: physics.Vacuum}
 	s, rep, err := Read(strings.NewReader(in), ReadOptions{Import: imp})
 	if err != nil {
 		t.Fatal(err)
@@ -229,7 +231,7 @@ func TestReadImport(t *testing.T) {
 	}
 	// Without a header row, by number, CSV, air.
 	cols, _ = ParseColumnMap("wavelength=2:A,species=1,log_gf=3,lower_energy=4:eV")
-	s, _, err = Read(strings.NewReader("Sr II, 10327.31, -0.35, 1.8\n"), ReadOptions{Import: &Import{Columns: cols, Medium: Air}})
+	s, _, err = Read(strings.NewReader("Sr II, 10327.31, -0.35, 1.8\n"), ReadOptions{Import: &Import{Columns: cols, Medium: physics.Air}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -244,7 +246,7 @@ func TestReadImport(t *testing.T) {
 }
 
 func TestReadMediumConflict(t *testing.T) {
-	_, _, err := Read(strings.NewReader(sample), ReadOptions{Medium: Vacuum})
+	_, _, err := Read(strings.NewReader(sample), ReadOptions{Medium: physics.Vacuum})
 	if err == nil || !strings.Contains(err.Error(), "medium: air") {
 		t.Errorf("conflicting media: %v", err)
 	}

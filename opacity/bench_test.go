@@ -12,7 +12,8 @@ import (
 	"time"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/opacity/internal/kernels"
+	"broadline/physics"
 )
 
 // benchElements are ten r-process-like elements; with stages I–III they
@@ -55,12 +56,15 @@ func useBenchLanes(b *testing.B) {
 	if w < 0 {
 		return
 	}
-	if w != 0 && w != 4 && w != 8 || w > vecLanes {
-		b.Fatalf("-lanes %d: this processor has vector loops of up to %d lanes (0, 4 or 8 are possible)", w, vecLanes)
+	own := kernels.Lanes()
+	if err := kernels.SetLanes(w); err != nil {
+		b.Fatalf("-lanes: %v", err)
 	}
-	own := vecLanes
-	vecLanes = w
-	b.Cleanup(func() { vecLanes = own })
+	b.Cleanup(func() {
+		if err := kernels.SetLanes(own); err != nil {
+			b.Error(err)
+		}
+	})
 }
 
 // BenchmarkExpansion times the expansion opacity at a new temperature each
@@ -79,7 +83,7 @@ func BenchmarkExpansion(b *testing.B) {
 			for b.Loop() {
 				p := benchPlasma(b, 4000+float64(i%50)*20)
 				i++
-				if _, err := ls.Expansion(ctx, p, spectra.Day, g, workers); err != nil {
+				if _, err := ls.Expansion(ctx, p, physics.Day, g, workers); err != nil {
 					b.Fatal(err)
 				}
 			}
@@ -155,7 +159,7 @@ func BenchmarkFloorRatio(b *testing.B) {
 		t1, c1 := time.Now(), cpuTime()
 		p := benchPlasma(b, 4000+float64(i%50)*20)
 		i++
-		if _, err := ls.Expansion(ctx, p, spectra.Day, g, workers); err != nil {
+		if _, err := ls.Expansion(ctx, p, physics.Day, g, workers); err != nil {
 			b.Fatal(err)
 		}
 		dx := time.Since(t1)

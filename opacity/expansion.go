@@ -13,6 +13,8 @@ import (
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"broadline/linelists"
+	"broadline/opacity/internal/kernels"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -141,7 +143,7 @@ func (ls *Lines) Expansion(ctx context.Context, p *Plasma, t float64, g Grid, wo
 	if err != nil {
 		return nil, err
 	}
-	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, spectra.HCOverK/p.Temperature)
+	return binLines(ctx, st, p, t, g, workers, nil, ls.GF, lev, physics.HCOverK/p.Temperature)
 }
 
 // ExpansionFromDepths is ExpansionOpacity for optical depths tau already
@@ -209,7 +211,7 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 	chunks = append(chunks, nb)
 	nc := len(chunks) - 1
 	workers = min(max(workers, 1), runtime.GOMAXPROCS(0), max(nc, 1))
-	scale := 1 / (p.Density * spectra.SpeedOfLight * t)
+	scale := 1 / (p.Density * physics.SpeedOfLight * t)
 	var next atomic.Int64
 	var unmodelled atomic.Int64
 	var wg sync.WaitGroup
@@ -229,9 +231,9 @@ func binLines(ctx context.Context, st *linelists.Store, p *Plasma, t float64, g 
 					clear(acc)
 					i0, i1 := start[k], start[k+1]
 					if tau != nil {
-						addEscapes(acc, tau[i0:i1], wl[i0:i1], st.Species[i0:i1])
+						kernels.AddEscapes(acc, tau[i0:i1], wl[i0:i1], st.Species[i0:i1])
 					} else {
-						sumFused(wl[i0:i1], gf[i0:i1], st.Species[i0:i1], st.Lower[i0:i1], lev, hck, acc)
+						kernels.SumLines(wl[i0:i1], gf[i0:i1], st.Species[i0:i1], st.Lower[i0:i1], lev, hck, acc)
 					}
 					clear(rows)
 					for s, a := range acc {
@@ -306,229 +308,4 @@ func (x *Expansion) Grey(from, to float64) (float64, error) {
 			ErrGrid, from, to, x.Grid.Edges[0], x.Grid.Edges[len(x.Grid.Edges)-1])
 	}
 	return num / den, nil
-}
-
-// sumFused adds λ_l (1 − e^{−τ_l}) of each line of a run to acc[species],
-// with τ computed as in Sobolev: λ·gf·lev·stim. Lines of species not
-// modelled have lev = 0, so τ = 0. With vector instructions (vecLanes > 0)
-// all but the last 0–3 lines of the run go through sumVec, which computes
-// the stimulated-emission factor afresh for every line; the rest, and the
-// whole run on processors without AVX2, take the portable pair fusedDepths
-// (factor carried along) and addEscapes in blocks of fusedBlock lines. The
-// tests hold both to the formula evaluated directly.
-func sumFused(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck float64, acc []float64) {
-	n4 := 0
-	if vecLanes > 0 {
-		n4 = len(wl) &^ 3
-		sumVec(wl[:n4], gf[:n4], sp[:n4], lower[:n4], lev, hck, acc)
-	}
-	var buf [fusedBlock]float64
-	var c stimCarry
-	for lo := n4; lo < len(wl); lo += fusedBlock {
-		hi := min(lo+fusedBlock, len(wl))
-		tau := buf[:hi-lo]
-		fusedDepths(tau, wl[lo:hi], gf[lo:hi], lower[lo:hi], lev, hck, &c)
-		addEscapes(acc, tau, wl[lo:hi], sp[lo:hi])
-	}
-}
-
-// sumVec is sumFused with the vector loops, for a run whose length is a
-// multiple of four, in blocks of fusedBlock lines: the level terms of a block
-// are gathered into a buffer, linesVec turns each line into its term
-// λ(1 − e^{−τ}), and one loop adds the terms to the per-species sums while
-// it gathers the level terms of the next block (the two streams of
-// independent loads keep more of them in flight than two loops would).
-func sumVec(wl, gf []float64, sp []uint16, lower []uint32, lev []float64, hck float64, acc []float64) {
-	var w, lv [fusedBlock]float64
-	n := len(wl)
-	hi := min(fusedBlock, n)
-	gatherLevels(lv[:hi], lower[:hi], lev)
-	for lo := 0; lo < n; lo = hi {
-		hi = min(lo+fusedBlock, n)
-		m := hi - lo
-		linesVec(w[:m], wl[lo:hi], gf[lo:hi], lv[:m], hck)
-		next := lower[hi:min(hi+fusedBlock, n)]
-		s := sp[lo:hi]
-		k := len(next) // ≤ m: only the last block is shorter
-		for i, l := range next {
-			acc[s[i]] += w[i]
-			lv[i] = lev[l]
-		}
-		for i := k; i < m; i++ {
-			acc[s[i]] += w[i]
-		}
-	}
-}
-
-// gatherLevels writes lev[lower[i]] into dst[i] for each line.
-func gatherLevels(dst []float64, lower []uint32, lev []float64) {
-	dst = dst[:len(lower)]
-	for i, l := range lower {
-		dst[i] = lev[l]
-	}
-}
-
-// linesVec writes λ(1 − e^{−τ}), τ = λ·gf·lv·(1 − e^{−hck/λ}), of the first
-// 4·⌊len(wl)/4⌋ lines into dst with the widest vector loop the processor
-// has (vecLanes must be > 0).
-func linesVec(dst, wl, gf, lv []float64, hck float64) {
-	dst, gf, lv = dst[:len(wl)], gf[:len(wl)], lv[:len(wl)] // the kernels trust these lengths
-	n8 := 0
-	if vecLanes == 8 {
-		n8 = len(wl) &^ 7
-		linesAVX512(dst[:n8], wl[:n8], gf[:n8], lv[:n8], hck)
-	}
-	linesAVX2(dst[n8:], wl[n8:], gf[n8:], lv[n8:], hck) // the rest, or a last group of four
-}
-
-// stimCarry is the state of the stimulated-emission factor carried along a
-// run of lines (see stimRefresh): x = hc/λkT of the previous line, e^{−x},
-// and the number of steps left before a fresh exponential.
-type stimCarry struct {
-	x, e float64
-	left int
-}
-
-// fusedDepths writes τ = λ·gf·lev[lower]·(1 − e^{−hc/λkT}) of each line into
-// dst, continuing the stimulated-emission factor from c. The step is
-// written out here (the compiler does not inline it).
-func fusedDepths(dst, wl, gf []float64, lower []uint32, lev []float64, hck float64, c *stimCarry) {
-	dst, gf, lower = dst[:len(wl)], gf[:len(wl)], lower[:len(wl)]
-	xPrev, e, left := c.x, c.e, c.left
-	for i, lam := range wl {
-		x := hck / lam
-		d := xPrev - x
-		if left > 0 && d >= 0 && d <= 1e-3 {
-			e *= 1 + d*(1+d*(1.0/2+d*(1.0/6+d*(1.0/24))))
-			left--
-		} else {
-			e = fastExp(-x)
-			left = stimRefresh
-		}
-		xPrev = x
-		stim := 1 - e
-		if x < 1e-3 {
-			stim = -math.Expm1(-x)
-		}
-		dst[i] = lam * gf[i] * lev[lower[i]] * stim
-	}
-	c.x, c.e, c.left = xPrev, e, left
-}
-
-// escapesVec writes λ(1 − e^{−τ}) of the first 4·⌊len(wl)/4⌋ lines into dst
-// with the widest vector loop the processor has (vecLanes must be > 0).
-func escapesVec(dst, tau, wl []float64) {
-	dst, tau = dst[:len(wl)], tau[:len(wl)] // the kernels trust these lengths
-	n8 := 0
-	if vecLanes == 8 {
-		n8 = len(wl) &^ 7
-		escapesAVX512(dst[:n8], tau[:n8], wl[:n8])
-	}
-	escapesAVX2(dst[n8:], tau[n8:], wl[n8:]) // the rest, or a last group of four
-}
-
-// addEscapes adds λ_l (1 − e^{−τ_l}) to acc[sp[l]] for each line: with
-// vector instructions eight or four lines at a time (escapesVec, in blocks
-// of fusedBlock) where the processor has them, else addEscapesScalar.
-func addEscapes(acc, tau, wl []float64, sp []uint16) {
-	if vecLanes == 0 || len(wl) < 4 {
-		addEscapesScalar(acc, tau, wl, sp)
-		return
-	}
-	var buf [fusedBlock]float64
-	tau, sp = tau[:len(wl)], sp[:len(wl)]
-	for lo := 0; lo < len(wl); lo += fusedBlock {
-		hi := min(lo+fusedBlock, len(wl))
-		n4 := lo + (hi-lo)&^3
-		w := buf[:n4-lo]
-		escapesVec(w, tau[lo:n4], wl[lo:n4])
-		s := sp[lo:n4]
-		s = s[:len(w)]
-		for i, x := range w {
-			acc[s[i]] += x
-		}
-		if n4 < hi {
-			addEscapesScalar(acc, tau[n4:hi], wl[n4:hi], sp[n4:hi])
-		}
-	}
-}
-
-// addEscapesScalar is addEscapes in portable Go, with the steps of escape
-// written out (the compiler does not inline it) for two lines at a time
-// (10% faster than one: less loop overhead, two chains interleaved).
-func addEscapesScalar(acc, tau, wl []float64, sp []uint16) {
-	const shifter = 0x1.8p52
-	tau, sp = tau[:len(wl)], sp[:len(wl)]
-	n := len(wl) &^ 1
-	for i := 0; i < n; i += 2 {
-		y0 := math.Float64frombits(min(math.Float64bits(tau[i]), bits708) | 1<<63)
-		y1 := math.Float64frombits(min(math.Float64bits(tau[i+1]), bits708) | 1<<63)
-		kf0 := math.FMA(y0, 16/math.Ln2, shifter) - shifter
-		kf1 := math.FMA(y1, 16/math.Ln2, shifter) - shifter
-		k0, k1 := int64(kf0), int64(kf1)
-		r0 := math.FMA(kf0, -math.Ln2/16, y0)
-		r1 := math.FMA(kf1, -math.Ln2/16, y1)
-		a0, a1 := r0*r0, r1*r1
-		c0 := math.FMA(a0, math.FMA(r0, 1.0/5040, 1.0/720), math.FMA(r0, 1.0/120, 1.0/24))
-		c1 := math.FMA(a1, math.FMA(r1, 1.0/5040, 1.0/720), math.FMA(r1, 1.0/120, 1.0/24))
-		q0 := math.FMA(a0, math.FMA(a0, c0, math.FMA(r0, 1.0/6, 1.0/2)), r0)
-		q1 := math.FMA(a1, math.FMA(a1, c1, math.FMA(r1, 1.0/6, 1.0/2)), r1)
-		s0 := expTable16[k0&15] * math.Float64frombits(uint64((k0>>4)+1023)<<52)
-		s1 := expTable16[k1&15] * math.Float64frombits(uint64((k1>>4)+1023)<<52)
-		acc[sp[i]] -= wl[i] * math.FMA(s0, q0, s0-1)
-		acc[sp[i+1]] -= wl[i+1] * math.FMA(s1, q1, s1-1)
-	}
-	if n < len(wl) {
-		acc[sp[n]] += wl[n] * escape(tau[n])
-	}
-}
-
-// bits708 is the bit pattern of 708.0. Non-negative floats order like
-// their bit patterns, so min(bits(τ), bits708) clamps τ at 708 (and sends
-// +Inf and NaN there) with one integer comparison.
-const bits708 = 0x4086200000000000
-
-// fusedBlock is the number of lines sumFused and sumVec take at a time: the
-// buffers of a block (2 KB each) stay in the first-level cache between the
-// loops that write and read them. 512 to 2048 measured the same.
-const fusedBlock = 256
-
-// stimRefresh bounds the run of lines over which the stimulated-emission
-// factor 1 − e^{−x}, x = hc/λkT, is carried along ascending wavelengths
-// instead of recomputed: from one line to the next e^{−x} is multiplied by
-// e^{d}, d = x_prev − x, from its Taylor series to d⁴ when 0 ≤ d ≤ 10⁻³
-// (truncation < d⁵/120 ≈ 1e-17); a larger step, a descent or the end of a
-// run takes a fresh exponential. The rounding drift over a run stays below
-// about 1e-13 relative. For x < 10⁻³ the factor is −expm1(−x).
-const stimRefresh = 1024
-
-// escape returns the escape-probability complement 1 − e^{−τ} for τ ≥ 0,
-// by a table-driven exponential (Tang 1989, ACM TOMS 15, 144) arranged like
-// expm1: y = −min(τ, 708) = (16m + j)·ln2/16 + r, |r| ≤ ln2/32,
-// s = 2^m·2^(j/16), e^y − 1 = s·q + (s − 1) in one fused multiply-add (s − 1
-// exact by Sterbenz's lemma for small |y|), q = e^r − 1 from its series to
-// r⁷ (truncation < r⁸/40320, below 6e-17 relative to r), evaluated as
-// r + r²(a + r²(b + r²c)) with a = 1/2 + r/6, b = 1/24 + r/120,
-// c = 1/720 + r/5040; where m = j = 0 it is the series itself, so thin lines
-// keep full relative precision. The reduction r = y − k·(ln2/16) is one fused
-// multiply-add with one constant; the rounding of ln2/16 errs by
-// < |y|·1e-16 in absolute terms, which is < 1e-16 relative to 1 − e^{y} for
-// every y. Relative error < 3e-14 for every τ (tested against the standard
-// library; 2.4e-15 seen). Beyond 708 the result is 1 to double precision. It
-// has no branch on τ, which in a big list takes every value from 1e-30 to
-// 1e6 in no order a predictor could learn. The table has 16 entries, not
-// more, so that the AVX-512 loop holds it in two registers and looks it up
-// with one permutation instead of a gather. addEscapesScalar and the
-// assembly loops take exactly these steps and give the same bits.
-func escape(tau float64) float64 {
-	const shifter = 0x1.8p52
-	y := math.Float64frombits(min(math.Float64bits(tau), bits708) | 1<<63)
-	kf := math.FMA(y, 16/math.Ln2, shifter) - shifter
-	k := int64(kf)
-	r := math.FMA(kf, -math.Ln2/16, y)
-	r2 := r * r
-	c := math.FMA(r2, math.FMA(r, 1.0/5040, 1.0/720), math.FMA(r, 1.0/120, 1.0/24))
-	q := math.FMA(r2, math.FMA(r2, c, math.FMA(r, 1.0/6, 1.0/2)), r)
-	s := expTable16[k&15] * math.Float64frombits(uint64((k>>4)+1023)<<52)
-	return -math.FMA(s, q, s-1)
 }

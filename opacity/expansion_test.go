@@ -4,13 +4,14 @@ import (
 	"context"
 	"errors"
 	"math"
-	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
 	"gonum.org/v1/gonum/integrate/quad"
 
 	"broadline/linelists"
+	"broadline/opacity/internal/kernels"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -63,7 +64,7 @@ func binThin(st *linelists.Store, p *Plasma, t float64, g Grid) []float64 {
 	for i, lam := range st.Wavelength {
 		for k := 0; k < g.Bins(); k++ {
 			if g.Edges[k] <= lam && lam < g.Edges[k+1] {
-				out[k] += directTau(st, p, i, t) * lam / (p.Density * spectra.SpeedOfLight * t * g.Width(k))
+				out[k] += directTau(st, p, i, t) * lam / (p.Density * physics.SpeedOfLight * t * g.Width(k))
 			}
 		}
 	}
@@ -83,7 +84,7 @@ func TestExpansionLimits(t *testing.T) {
 	}
 	lev := PlasmaLevelDensities(nil, st, p)
 	tau := make([]float64, st.Len())
-	if err := Sobolev(ctx, tau, st, lev, p.Temperature, spectra.Day, 1); err != nil {
+	if err := Sobolev(ctx, tau, st, lev, p.Temperature, physics.Day, 1); err != nil {
 		t.Fatal(err)
 	}
 	tmax, tmin := 0.0, math.Inf(1)
@@ -95,7 +96,7 @@ func TestExpansionLimits(t *testing.T) {
 	// Thin limit: scale t so that every τ ≤ 1e-9; then κ is the summed
 	// Sobolev line opacity (π e²/mₑc) Σ gf n_l/g_l λ² stim/(ρ c Δλ), in
 	// which t cancels (REFERENCES.md [calc]).
-	tThin := spectra.Day * 1e-9 / tmax
+	tThin := physics.Day * 1e-9 / tmax
 	thin, err := ExpansionOpacity(ctx, st, p, tThin, g, 2)
 	if err != nil {
 		t.Fatal(err)
@@ -123,7 +124,7 @@ func TestExpansionLimits(t *testing.T) {
 
 	// Thick limit: scale t so that every τ ≥ 100; then κ = Σ λ_l/(ρ c t Δλ),
 	// i.e. (number of lines in bin)·⟨λ⟩/(ρ c t Δλ) (REFERENCES.md [calc]).
-	tThick := spectra.Day * 100 / tmin
+	tThick := physics.Day * 100 / tmin
 	thick, err := ExpansionOpacity(ctx, st, p, tThick, g, 2)
 	if err != nil {
 		t.Fatal(err)
@@ -136,7 +137,7 @@ func TestExpansionLimits(t *testing.T) {
 				n++
 			}
 		}
-		want := float64(n) * (sum / max(float64(n), 1)) / (p.Density * spectra.SpeedOfLight * tThick * g.Width(k))
+		want := float64(n) * (sum / max(float64(n), 1)) / (p.Density * physics.SpeedOfLight * tThick * g.Width(k))
 		if !scalar.EqualWithinAbsOrRel(thick.Kappa[k], want, 1e-300, 1e-12) {
 			t.Errorf("thick bin %d: κ = %.12g, N λ/(ρctΔλ) = %.12g (%d lines)", k, thick.Kappa[k], want, n)
 		}
@@ -145,15 +146,15 @@ func TestExpansionLimits(t *testing.T) {
 	// The fused computation equals binning Sobolev's depths; rows add to κ;
 	// one worker and two give identical bits.
 	for _, grid := range []Grid{g, must(LogGrid(3500, 26000, 333))} {
-		a, err := ExpansionOpacity(ctx, st, p, spectra.Day, grid, 1)
+		a, err := ExpansionOpacity(ctx, st, p, physics.Day, grid, 1)
 		if err != nil {
 			t.Fatal(err)
 		}
-		b, err := ExpansionFromDepths(ctx, st, tau, p, spectra.Day, grid, 2)
+		b, err := ExpansionFromDepths(ctx, st, tau, p, physics.Day, grid, 2)
 		if err != nil {
 			t.Fatal(err)
 		}
-		c, err := ExpansionOpacity(ctx, st, p, spectra.Day, grid, 2)
+		c, err := ExpansionOpacity(ctx, st, p, physics.Day, grid, 2)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -259,7 +260,7 @@ func TestGrids(t *testing.T) {
 	}
 	p, _ := Solve(mustComp(t, "Ca=1"), 1e-13, 5000, nil)
 	st := makeStore([]testLine{{linelists.Species{Z: 20, Charge: 1}, 5000, 0, 0, 2}})
-	if _, err := ExpansionOpacity(context.Background(), st, p, spectra.Day, Grid{Edges: []float64{5, 4}}, 1); !errors.Is(err, ErrGrid) {
+	if _, err := ExpansionOpacity(context.Background(), st, p, physics.Day, Grid{Edges: []float64{5, 4}}, 1); !errors.Is(err, ErrGrid) {
 		t.Errorf("descending edges: %v", err)
 	}
 }
@@ -293,125 +294,6 @@ func TestPlanckMeanAndGrey(t *testing.T) {
 	}
 }
 
-// TestAddEscapes holds the written-out escape loop of the fused pass to
-// −math.Expm1(−τ) (the reference), line by line, over the optical depths a
-// line list spans, including 0, the clamp at 708, +Inf and the thin limit.
-func TestAddEscapes(t *testing.T) {
-	r := rand.New(rand.NewPCG(4, 5))
-	n := 59999 // odd: the loop takes two lines at a time
-	tau := make([]float64, n)
-	wl := make([]float64, n)
-	sp := make([]uint16, n)
-	for i := range tau {
-		tau[i] = math.Pow(10, -30+36*r.Float64())
-		wl[i] = 3000 + 20000*r.Float64()
-		sp[i] = uint16(i)
-	}
-	copy(tau, []float64{0, 1e-300, 707.9, 708, 800, math.Inf(1), 1.0 / 128, math.Ln2 / 128})
-	tau[n-1] = 0.3 // the odd line left over
-	// Every loop the processor has (portable, AVX2, AVX-512), which must
-	// agree bit for bit (same steps, same constants, same fused
-	// multiply-adds).
-	lanes := laneWidths(t)
-	sums := make([][]float64, len(lanes))
-	for v, w := range lanes {
-		vecLanes = w
-		acc := make([]float64, n)
-		addEscapes(acc, tau, wl, sp)
-		for i := range tau {
-			want := -math.Expm1(-tau[i]) * wl[i]
-			if !scalar.EqualWithinAbsOrRel(acc[i], want, 0, 3e-14) {
-				t.Fatalf("%d lanes, τ = %v: λ(1 − e^−τ) = %v, want %v", w, tau[i], acc[i], want)
-			}
-		}
-		sums[v] = acc
-	}
-	for v := 1; v < len(lanes); v++ {
-		for i := range tau {
-			if math.Float64bits(sums[0][i]) != math.Float64bits(sums[v][i]) {
-				t.Fatalf("τ = %v: %d-lane loop %v, portable %v", tau[i], lanes[v], sums[v][i], sums[0][i])
-			}
-		}
-	}
-}
-
-// laneWidths returns the vector widths to test: 0 (the portable loops) and
-// every width up to the processor's own, and restores vecLanes at the end
-// of the test.
-func laneWidths(t *testing.T) []int {
-	own := vecLanes
-	t.Cleanup(func() { vecLanes = own })
-	lanes := []int{0}
-	for _, w := range []int{4, 8} {
-		if w <= own {
-			lanes = append(lanes, w)
-		}
-	}
-	if len(lanes) < 3 {
-		t.Logf("this processor has vector loops of %d lanes: the wider ones are not checked here", own)
-	}
-	return lanes
-}
-
-func TestBits708(t *testing.T) {
-	if math.Float64frombits(bits708) != 708 {
-		t.Errorf("bits708 is %v, not 708", math.Float64frombits(bits708))
-	}
-}
-
-// TestLinesVector holds the vector line loops (stimulated-emission factor,
-// product with the gathered level term, escape, weight λ) to the formula
-// evaluated with the standard library, λ(1 − e^{−τ}) with
-// τ = λ·gf·lv·(−expm1(−hc/λkT)), to 1e-13 (each of the two exponentials errs
-// by < 3e-14), from x = hc/λkT = 1e-6 to beyond 708 and from thin to thick
-// lines; and the AVX2 and AVX-512 loops to each other bit for bit.
-func TestLinesVector(t *testing.T) {
-	lanes := laneWidths(t)[1:]
-	if len(lanes) == 0 {
-		t.Skip("no AVX2 and FMA")
-	}
-	r := rand.New(rand.NewPCG(6, 7))
-	n := 4003 // not a multiple of four: the last lines are left alone
-	wl := make([]float64, n)
-	gf := make([]float64, n)
-	lv := make([]float64, n)
-	for i := range wl {
-		wl[i] = 3000 + 22000*r.Float64()
-		gf[i] = math.Pow(10, -6+7*r.Float64())
-		lv[i] = math.Pow(10, -30+30*r.Float64()) // τ from ~1e-33 to ~1e5
-	}
-	got := make([][]float64, len(lanes))
-	for v, w := range lanes {
-		vecLanes = w
-		for _, T := range []float64{10, 1000, 5000, 1e5, 1e7, 1e10} {
-			hck := spectra.HCOverK / T
-			dst := make([]float64, n)
-			for i := range dst {
-				dst[i] = -1
-			}
-			linesVec(dst, wl, gf, lv, hck)
-			for i, lam := range wl {
-				tau := lam * gf[i] * lv[i] * -math.Expm1(-hck/lam)
-				want := lam * -math.Expm1(-tau)
-				if i >= n&^3 {
-					want = -1
-				}
-				if !scalar.EqualWithinAbsOrRel(dst[i], want, 0, 1e-13) {
-					t.Fatalf("%d lanes, T = %v K, λ = %v Å (line %d): λ(1 − e^−τ) = %v, want %v", w, T, lam, i, dst[i], want)
-				}
-			}
-			got[v] = append(got[v], dst...)
-		}
-	}
-	for v := 1; v < len(lanes); v++ {
-		for i := range got[0] {
-			if math.Float64bits(got[v][i]) != math.Float64bits(got[0][i]) {
-				t.Fatalf("value %d: %d-lane loop %v, %d-lane loop %v", i, lanes[v], got[v][i], lanes[0], got[0][i])
-			}
-		}
-	}
-}
-
 // TestExpansionPortable: with the vector loops switched off (as on a
 // processor without AVX2) the expansion opacity is the same to 1e-12 per
 // bin, on a store whose bins hold runs of every length modulo four.
@@ -430,8 +312,10 @@ func TestExpansionPortable(t *testing.T) {
 	lanes := laneWidths(t)
 	x := make([]*Expansion, len(lanes))
 	for v, w := range lanes {
-		vecLanes = w
-		if x[v], err = ls.Expansion(ctx, p, spectra.Day, g, 2); err != nil {
+		if err := kernels.SetLanes(w); err != nil {
+			t.Fatal(err)
+		}
+		if x[v], err = ls.Expansion(ctx, p, physics.Day, g, 2); err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -445,4 +329,26 @@ func TestExpansionPortable(t *testing.T) {
 			}
 		}
 	}
+}
+
+// laneWidths returns the vector widths of the kernels to test: 0 (the
+// portable loops) and every width up to the processor's own, and restores
+// the width in use at the end of the test.
+func laneWidths(t *testing.T) []int {
+	own := kernels.Lanes()
+	t.Cleanup(func() {
+		if err := kernels.SetLanes(own); err != nil {
+			t.Error(err)
+		}
+	})
+	lanes := []int{0}
+	for _, w := range []int{4, 8} {
+		if w <= kernels.MaxLanes() {
+			lanes = append(lanes, w)
+		}
+	}
+	if len(lanes) < 3 {
+		t.Logf("this processor and build have vector loops of %d lanes: the wider ones are not checked here", kernels.MaxLanes())
+	}
+	return lanes
 }

@@ -7,7 +7,7 @@ import (
 	"sort"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // MaxStages is the largest number of ion stages modelled per element:
@@ -101,7 +101,7 @@ func (p *Plasma) Species(sp linelists.Species) (n, u float64, ok bool) {
 
 // sahaConst is (2π mₑ k / h²)^{3/2} in cm⁻³ K^{−3/2}, derived from
 // spectra's constants; 2.414683e15 by REFERENCES.md [calc].
-var sahaConst = math.Pow(2*math.Pi*spectra.ElectronMass*spectra.Boltzmann/(spectra.Planck*spectra.Planck), 1.5)
+var sahaConst = math.Pow(2*math.Pi*physics.ElectronMass*physics.Boltzmann/(physics.Planck*physics.Planck), 1.5)
 
 // maxSolveIterations bounds the root solve; bisection alone needs about 60
 // steps from any bracket the solver builds.
@@ -176,7 +176,7 @@ func SolveAtoms(c Composition, rho, T float64, a Atoms) (*Plasma, error) {
 	}
 	p := &Plasma{Temperature: T, Density: rho, Elements: make([]ElementState, len(c.Z))}
 	work := make([]elementWork, len(c.Z))
-	kT := spectra.Boltzmann * T / spectra.ElectronVolt // eV
+	kT := physics.Boltzmann * T / physics.ElectronVolt // eV
 	lnS := math.Log(2*sahaConst) + 1.5*math.Log(T)
 	maxElectrons := 0.0
 	for k, z := range c.Z {
@@ -190,7 +190,7 @@ func SolveAtoms(c Composition, rho, T float64, a Atoms) (*Plasma, error) {
 		es := &p.Elements[k]
 		es.Z = z
 		es.MassFraction = c.MassFraction[k]
-		es.NumberDensity = rho * c.MassFraction[k] / (el.Weight * spectra.AtomicMass)
+		es.NumberDensity = rho * c.MassFraction[k] / (el.Weight * physics.AtomicMass)
 		nIon := 0
 		for nIon < len(el.Ionization) && el.Ionization[nIon] > 0 {
 			nIon++

@@ -12,7 +12,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 func mustComp(t testing.TB, s string) Composition {
@@ -67,7 +67,7 @@ func TestParseComposition(t *testing.T) {
 // independent of the density.
 func sahaPressureForm(p *Plasma, z, j int) float64 {
 	e := p.Element(z)
-	return e.Ion[j+1] / e.Ion[j] * p.ElectronDensity * spectra.Boltzmann * p.Temperature
+	return e.Ion[j+1] / e.Ion[j] * p.ElectronDensity * physics.Boltzmann * p.Temperature
 }
 
 // TestHydrogenTextbook checks the textbook pure-hydrogen example in the
@@ -105,9 +105,9 @@ func TestHydrogenTextbook(t *testing.T) {
 	// ionised with P_e = 200 has n_I = n_II = n_e = P_e/kT, so
 	// ρ = 2 n_e m_H; solving at that ρ and 9555 K must give back n_e.
 	const T = 9555.0
-	ne := 200 / (spectra.Boltzmann * T)
+	ne := 200 / (physics.Boltzmann * T)
 	el, _ := linelists.ElementByZ(1)
-	p, err := Solve(h, 2*ne*el.Weight*spectra.AtomicMass, T, nil)
+	p, err := Solve(h, 2*ne*el.Weight*physics.AtomicMass, T, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -123,8 +123,8 @@ func TestHydrogenTextbook(t *testing.T) {
 // 2 (U_{j+1}/U_j)(2π mₑ k T/h²)^{3/2} exp(−χ_j/kT), in cm⁻³, with its own
 // arithmetic (math.Pow of the product, exp of the energy ratio in erg).
 func sahaDirect(T, chiEV, u0, u1 float64) float64 {
-	x := 2 * math.Pi * spectra.ElectronMass * spectra.Boltzmann * T / (spectra.Planck * spectra.Planck)
-	return 2 * u1 / u0 * math.Pow(x, 1.5) * math.Exp(-chiEV*spectra.ElectronVolt/(spectra.Boltzmann*T))
+	x := 2 * math.Pi * physics.ElectronMass * physics.Boltzmann * T / (physics.Planck * physics.Planck)
+	return 2 * u1 / u0 * math.Pow(x, 1.5) * math.Exp(-chiEV*physics.ElectronVolt/(physics.Boltzmann*T))
 }
 
 // TestSahaAndConservation checks every stage pair of solved plasmas against a
@@ -160,7 +160,7 @@ func TestSahaAndConservation(t *testing.T) {
 			if !scalar.EqualWithinAbsOrRel(sum, e.NumberDensity, 0, 1e-12) {
 				t.Errorf("%s %s: Σ stages %g ≠ N %g", tc.comp, el.Symbol, sum, e.NumberDensity)
 			}
-			wantN := tc.rho * e.MassFraction / (el.Weight * spectra.AtomicMass)
+			wantN := tc.rho * e.MassFraction / (el.Weight * physics.AtomicMass)
 			if !scalar.EqualWithinAbsOrRel(e.NumberDensity, wantN, 0, 1e-13) {
 				t.Errorf("%s %s: N = %g, want ρX/(A m_u) = %g", tc.comp, el.Symbol, e.NumberDensity, wantN)
 			}
@@ -204,7 +204,7 @@ func TestTwoStageLimit(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%s: %v", tc.name, err)
 		}
-		N := tc.rho / (el.Weight * spectra.AtomicMass)
+		N := tc.rho / (el.Weight * physics.AtomicMass)
 		phi := sahaDirect(tc.T, el.Ionization[0], 2, 1)
 		var want float64
 		if phi > 1e150 {
@@ -214,8 +214,8 @@ func TestTwoStageLimit(t *testing.T) {
 		}
 		if phi == 0 { // Φ underflows a float64: compare logs, n_e = √(ΦN)
 			// ln Φ = ln(2·U_II/U_I) + 1.5 ln(2π mₑkT/h²) − χ/kT, with 2·U_II/U_I = 1.
-			lnPhi := 1.5*math.Log(2*math.Pi*spectra.ElectronMass*spectra.Boltzmann*tc.T/(spectra.Planck*spectra.Planck)) -
-				el.Ionization[0]*spectra.ElectronVolt/(spectra.Boltzmann*tc.T)
+			lnPhi := 1.5*math.Log(2*math.Pi*physics.ElectronMass*physics.Boltzmann*tc.T/(physics.Planck*physics.Planck)) -
+				el.Ionization[0]*physics.ElectronVolt/(physics.Boltzmann*tc.T)
 			got, wantLn := math.Log(p.ElectronDensity), 0.5*(lnPhi+math.Log(N))
 			if p.ElectronDensity == 0 || !scalar.EqualWithinAbsOrRel(got, wantLn, 1e-9, 1e-12) {
 				t.Errorf("%s: n_e = %g (ln %.12g), want ln n_e = ½ ln(ΦN) = %.12g", tc.name, p.ElectronDensity, got, wantLn)

@@ -9,7 +9,8 @@ import (
 	"sync/atomic"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/opacity/internal/kernels"
+	"broadline/physics"
 )
 
 // SpeciesFactors writes N_ion/U (cm⁻³) for each entry of st.SpeciesTable
@@ -36,9 +37,9 @@ func SpeciesFactors(dst []float64, st *linelists.Store, p *Plasma) []float64 {
 func BoltzmannFactors(dst []float64, st *linelists.Store, T float64) []float64 {
 	e := st.Levels.Energy
 	dst = grow(dst, len(e))
-	beta := spectra.ElectronVolt / (spectra.Boltzmann * T) // 1/kT in eV⁻¹
+	beta := physics.ElectronVolt / (physics.Boltzmann * T) // 1/kT in eV⁻¹
 	for l, el := range e {
-		dst[l] = fastExp(-el * beta)
+		dst[l] = kernels.Exp(-el * beta)
 	}
 	return dst
 }
@@ -84,7 +85,7 @@ func NewLines(ctx context.Context, st *linelists.Store, workers int) (*Lines, er
 	ls := &Lines{Store: st, GF: make([]float64, n)}
 	err := parallel(ctx, n, workers, func(lo, hi int) {
 		for i, x := range st.LogGF[lo:hi] {
-			ls.GF[lo+i] = fastExp(float64(x) * math.Ln10)
+			ls.GF[lo+i] = kernels.Exp(float64(x) * math.Ln10)
 		}
 	})
 	if err != nil {
@@ -112,7 +113,7 @@ func Sobolev(ctx context.Context, dst []float64, st *linelists.Store, levelDensi
 // Sobolev is the package-level Sobolev for prepared lines. The per-level
 // factors are computed once per level; per line it takes three products and
 // the stimulated-emission factor, carried from line to line along the
-// sorted wavelengths (relative accuracy ~1e-13; see stimRefresh).
+// sorted wavelengths (relative accuracy ~1e-13; see kernels.Depths).
 func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []float64, T, t float64, workers int) error {
 	st := ls.Store
 	n := checkStore(st)
@@ -126,10 +127,10 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 		return err
 	}
 	lev := levelTerms(nil, levelDensity, t)
-	hck := spectra.HCOverK / T
+	hck := physics.HCOverK / T
 	return parallel(ctx, n, workers, func(lo, hi int) {
-		var c stimCarry
-		fusedDepths(dst[lo:hi], st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi], lev, hck, &c)
+		var c kernels.Carry
+		kernels.Depths(dst[lo:hi], st.Wavelength[lo:hi], ls.GF[lo:hi], st.Lower[lo:hi], lev, hck, &c)
 	})
 }
 
@@ -137,7 +138,7 @@ func (ls *Lines) Sobolev(ctx context.Context, dst []float64, levelDensity []floa
 // τ = λ[Å]·gf·lev·stim.
 func levelTerms(dst, levelDensity []float64, t float64) []float64 {
 	dst = grow(dst, len(levelDensity))
-	c := spectra.ClassicalLineCrossSection * spectra.Angstrom * t
+	c := physics.ClassicalLineCrossSection * physics.Angstrom * t
 	for l, d := range levelDensity {
 		dst[l] = c * d
 	}
@@ -153,15 +154,15 @@ func plasmaLevelTerms(ctx context.Context, st *linelists.Store, p *Plasma, t flo
 		panic(fmt.Sprintf("opacity: %d level species for %d levels", len(lv.Species), len(lv.Energy)))
 	}
 	sf := SpeciesFactors(nil, st, p)
-	c := spectra.ClassicalLineCrossSection * spectra.Angstrom * t
+	c := physics.ClassicalLineCrossSection * physics.Angstrom * t
 	for i := range sf {
 		sf[i] *= c
 	}
-	beta := spectra.ElectronVolt / (spectra.Boltzmann * p.Temperature)
+	beta := physics.ElectronVolt / (physics.Boltzmann * p.Temperature)
 	dst := make([]float64, len(lv.Energy))
 	err := parallel(ctx, len(dst), workers, func(lo, hi int) {
 		for l, s := range lv.Species[lo:hi] {
-			dst[lo+l] = sf[s] * fastExp(-lv.Energy[lo+l]*beta)
+			dst[lo+l] = sf[s] * kernels.Exp(-lv.Energy[lo+l]*beta)
 		}
 	})
 	return dst, err

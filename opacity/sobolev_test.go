@@ -9,11 +9,11 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"broadline/linelists"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // cmToEV converts a level energy in cm⁻¹ to eV (E = hc·σ).
-const cmToEV = spectra.Planck * spectra.SpeedOfLight / spectra.ElectronVolt
+const cmToEV = physics.Planck * physics.SpeedOfLight / physics.ElectronVolt
 
 // TestSobolevCaII checks the worked number of REFERENCES.md [calc]: Ca II
 // 8544.44 Å (vacuum), log gf = −0.36 (from memory there), lower level
@@ -29,18 +29,18 @@ func TestSobolevCaII(t *testing.T) {
 		t.Fatal(err)
 	}
 	tau := make([]float64, 1)
-	if err := Sobolev(context.Background(), tau, st, PlasmaLevelDensities(nil, st, p), 5000, spectra.Day, 1); err != nil {
+	if err := Sobolev(context.Background(), tau, st, PlasmaLevelDensities(nil, st, p), 5000, physics.Day, 1); err != nil {
 		t.Fatal(err)
 	}
 	n, u, _ := p.Species(caII)
-	nl := 6 * n / u * math.Exp(-el*spectra.ElectronVolt/(spectra.Boltzmann*5000))
+	nl := 6 * n / u * math.Exp(-el*physics.ElectronVolt/(physics.Boltzmann*5000))
 	if got := tau[0] / nl; !scalar.EqualWithinAbsOrRel(got, 0.01425*0.9655, 0, 5e-4) {
 		t.Errorf("τ/n_l = %.6g cm³, want 0.01425 × 0.9655 = %.6g (REFERENCES.md [calc])", got, 0.01425*0.9655)
 	}
 	// At a temperature where stimulated emission is negligible for this
 	// line (hc/λkT = 84 at 200 K), the ratio is 0.01425 itself.
 	lev := LevelDensities(nil, st, []float64{1}, []float64{1}) // n_l/g_l = 1 cm⁻³
-	if err := Sobolev(context.Background(), tau, st, lev, 200, spectra.Day, 1); err != nil {
+	if err := Sobolev(context.Background(), tau, st, lev, 200, physics.Day, 1); err != nil {
 		t.Fatal(err)
 	}
 	if got := tau[0] / 6; !scalar.EqualWithinAbsOrRel(got, 0.01425, 0, 5e-4) {
@@ -60,9 +60,9 @@ func directTau(st *linelists.Store, p *Plasma, i int, t float64) float64 {
 	}
 	e := st.Levels.Energy[st.Lower[i]]
 	lamCM := st.Wavelength[i] * 1e-8
-	sigma := math.Pi * spectra.ElementaryCharge * spectra.ElementaryCharge / (spectra.ElectronMass * spectra.SpeedOfLight)
-	boltz := math.Exp(-e * spectra.ElectronVolt / (spectra.Boltzmann * T))
-	stim := 1 - math.Exp(-spectra.Planck*spectra.SpeedOfLight/(lamCM*spectra.Boltzmann*T))
+	sigma := math.Pi * physics.ElementaryCharge * physics.ElementaryCharge / (physics.ElectronMass * physics.SpeedOfLight)
+	boltz := math.Exp(-e * physics.ElectronVolt / (physics.Boltzmann * T))
+	stim := 1 - math.Exp(-physics.Planck*physics.SpeedOfLight/(lamCM*physics.Boltzmann*T))
 	return sigma * math.Pow(10, float64(st.LogGF[i])) * lamCM * t * n / u * boltz * stim
 }
 
@@ -77,15 +77,15 @@ func TestSobolevMatchesDirect(t *testing.T) {
 	tau1 := make([]float64, st.Len())
 	tau2 := make([]float64, st.Len())
 	ctx := context.Background()
-	if err := Sobolev(ctx, tau1, st, lev, p.Temperature, 2*spectra.Day, 0); err != nil {
+	if err := Sobolev(ctx, tau1, st, lev, p.Temperature, 2*physics.Day, 0); err != nil {
 		t.Fatal(err)
 	}
-	if err := Sobolev(ctx, tau2, st, lev, p.Temperature, 2*spectra.Day, 4); err != nil {
+	if err := Sobolev(ctx, tau2, st, lev, p.Temperature, 2*physics.Day, 4); err != nil {
 		t.Fatal(err)
 	}
 	zeros := 0
 	for i := range tau1 {
-		want := directTau(st, p, i, 2*spectra.Day)
+		want := directTau(st, p, i, 2*physics.Day)
 		if !scalar.EqualWithinAbsOrRel(tau1[i], want, 1e-300, 1e-12) {
 			t.Fatalf("line %d: τ = %.15g, direct %.15g", i, tau1[i], want)
 		}
@@ -104,7 +104,7 @@ func TestSobolevMatchesDirect(t *testing.T) {
 	b := BoltzmannFactors(nil, st, 6000)
 	f := SpeciesFactors(nil, st, p)
 	for l, e := range st.Levels.Energy {
-		if want := math.Exp(-e * spectra.ElectronVolt / (spectra.Boltzmann * 6000)); !scalar.EqualWithinAbsOrRel(b[l], want, 0, 1e-13) {
+		if want := math.Exp(-e * physics.ElectronVolt / (physics.Boltzmann * 6000)); !scalar.EqualWithinAbsOrRel(b[l], want, 0, 1e-13) {
 			t.Fatalf("level %d: Boltzmann factor %v, want %v", l, b[l], want)
 		}
 		if want := f[st.Levels.Species[l]] * b[l]; lev[l] != want {
@@ -143,7 +143,7 @@ func TestSobolevMatchesDirect(t *testing.T) {
 
 	cctx, cancel := context.WithCancel(ctx)
 	cancel()
-	if err := Sobolev(cctx, tau1, st, lev, 6000, spectra.Day, 2); !errors.Is(err, context.Canceled) {
+	if err := Sobolev(cctx, tau1, st, lev, 6000, physics.Day, 2); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled context: %v", err)
 	}
 	if err := Sobolev(ctx, tau1, st, lev, 6000, 0, 2); !errors.Is(err, ErrInput) {
@@ -167,13 +167,13 @@ func TestDenseStore(t *testing.T) {
 	}
 	ctx := context.Background()
 	tau := make([]float64, st.Len())
-	if err := Sobolev(ctx, tau, st, PlasmaLevelDensities(nil, st, p), p.Temperature, spectra.Day, 2); err != nil {
+	if err := Sobolev(ctx, tau, st, PlasmaLevelDensities(nil, st, p), p.Temperature, physics.Day, 2); err != nil {
 		t.Fatal(err)
 	}
 	direct := make([]float64, st.Len())
 	worst := 0.0
 	for i := range tau {
-		direct[i] = directTau(st, p, i, spectra.Day)
+		direct[i] = directTau(st, p, i, physics.Day)
 		rel := math.Abs(tau[i]-direct[i]) / direct[i]
 		worst = max(worst, rel)
 		if rel > 1e-12 {
@@ -182,11 +182,11 @@ func TestDenseStore(t *testing.T) {
 	}
 	t.Logf("worst relative error of τ: %g", worst)
 	g := must(LinearGrid(3000, 25000, 50))
-	a, err := ExpansionOpacity(ctx, st, p, spectra.Day, g, 2)
+	a, err := ExpansionOpacity(ctx, st, p, physics.Day, g, 2)
 	if err != nil {
 		t.Fatal(err)
 	}
-	b, err := ExpansionFromDepths(ctx, st, direct, p, spectra.Day, g, 2)
+	b, err := ExpansionFromDepths(ctx, st, direct, p, physics.Day, g, 2)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -3,6 +3,8 @@ package spectra
 import (
 	"fmt"
 	"math"
+
+	"broadline/physics"
 )
 
 // fluxFactor returns the factor that converts a flux density in unit from
@@ -17,9 +19,9 @@ func fluxFactor(from, to FluxUnit, lambda float64) (float64, error) {
 		case FluxPerHz:
 			return 1, true
 		case FluxJansky:
-			return Jansky, true
+			return physics.Jansky, true
 		case FluxMilliJansky:
-			return 1e-3 * Jansky, true
+			return 1e-3 * physics.Jansky, true
 		}
 		return 0, false
 	}
@@ -27,7 +29,7 @@ func fluxFactor(from, to FluxUnit, lambda float64) (float64, error) {
 		return 0, fmt.Errorf("spectra: cannot convert flux from %v to %v", from, to)
 	}
 	// F_ν(cgs) per F_λ(per Å) at λ.
-	nuPerLam := lambda * lambda * Angstrom / SpeedOfLight
+	nuPerLam := lambda * lambda * physics.Angstrom / physics.SpeedOfLight
 	switch {
 	case from == FluxPerAngstrom:
 		c, _ := toCGS(to)

@@ -8,6 +8,8 @@ import (
 	"gonum.org/v1/gonum/diff/fd"
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/optimize"
+
+	"broadline/physics"
 )
 
 // BlackbodyFitOptions configure FitBlackbody. The zero value fits every
@@ -225,12 +227,12 @@ func FitBlackbody(s *Spectrum, opt BlackbodyFitOptions) (*BlackbodyFit, error) {
 		fit.Radius = opt.Distance * math.Sqrt(S)
 		relS, relT := fit.ScaleErr/S, fit.TemperatureErr/T
 		fit.RadiusErr = fit.Radius * relS / 2
-		fit.Luminosity = 4 * math.Pi * fit.Radius * fit.Radius * StefanBoltzmann * T * T * T * T
+		fit.Luminosity = 4 * math.Pi * fit.Radius * fit.Radius * physics.StefanBoltzmann * T * T * T * T
 		fit.LumErr = fit.Luminosity * math.Sqrt(relS*relS+16*relT*relT+8*fit.Correlation*relS*relT)
 		if opt.Epoch > 0 {
 			fit.Epoch = opt.Epoch
-			fit.Velocity = fit.Radius / (opt.Epoch * Day)
-			fit.VelErr = fit.RadiusErr / (opt.Epoch * Day)
+			fit.Velocity = fit.Radius / (opt.Epoch * physics.Day)
+			fit.VelErr = fit.RadiusErr / (opt.Epoch * physics.Day)
 		}
 	}
 	return fit, nil

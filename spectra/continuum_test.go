@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 // TestFitNoisyBlackbody fits the invented noisy blackbody written by
@@ -58,7 +60,7 @@ func TestFitNoisyBlackbody(t *testing.T) {
 // "Blackbody"), also when only windows of it are fitted and part of it is
 // masked, and also in mJy.
 func TestPhotosphere(t *testing.T) {
-	const T, R, D, days = 6000.0, 1.5e15, 40 * Megaparsec, 2.0
+	const T, R, D, days = 6000.0, 1.5e15, 40 * physics.Megaparsec, 2.0
 	w := LinearGrid(4000, 23000, 500)
 	flux := BlackbodyFluxes(nil, w, T, R, D)
 	s, _ := New(w, flux, nil, Metadata{FluxUnit: FluxPerAngstrom})
@@ -78,10 +80,10 @@ func TestPhotosphere(t *testing.T) {
 		if !scalar.EqualWithinRel(fit.Temperature, T, 1e-6) || !scalar.EqualWithinRel(fit.Radius, R, 1e-6) {
 			t.Errorf("%v: T %v R %g", unit, fit.Temperature, fit.Radius)
 		}
-		if v := R / (days * Day); !scalar.EqualWithinRel(fit.Velocity, v, 1e-6) {
+		if v := R / (days * physics.Day); !scalar.EqualWithinRel(fit.Velocity, v, 1e-6) {
 			t.Errorf("%v: v %g, want %g", unit, fit.Velocity, v)
 		}
-		if L := 4 * math.Pi * R * R * StefanBoltzmann * math.Pow(T, 4); !scalar.EqualWithinRel(fit.Luminosity, L, 1e-5) {
+		if L := 4 * math.Pi * R * R * physics.StefanBoltzmann * math.Pow(T, 4); !scalar.EqualWithinRel(fit.Luminosity, L, 1e-5) {
 			t.Errorf("L %g want %g", fit.Luminosity, L)
 		}
 		model := fit.Model(c.Wavelength)

@@ -1,13 +1,12 @@
 // Package spectra holds what the analyst measured: the Spectrum type and
-// everything that reads, converts, calibrates and prepares it, together with
-// the physical constants that the whole program shares.
+// everything that reads, converts, calibrates and prepares it.
 //
 // Conventions:
 //   - Physics is in cgs units. Inside the program wavelengths are vacuum
 //     wavelengths in ångström (float64); air wavelengths are converted on input.
-//   - Constants are defined once, in constants.go. The CODATA fundamental
-//     constants come from gonum.org/v1/gonum/unit/constant (SI) and are only
-//     converted to cgs here; the few it lacks are defined with their source.
+//   - Physical constants, the wavelength medium (Metadata.OriginalMedium is
+//     a physics.Medium) and the air ↔ vacuum conversion come from the
+//     package broadline/physics; none is defined here.
 //   - Bad data returns an error that names where it was found; a programming
 //     mistake (slices of different lengths passed to a helper) panics with a
 //     "spectra: ..." message.
@@ -52,8 +51,9 @@
 //	Read, ReadFile, ReadText, ReadFITS (io.Reader + ReadOptions) → *Spectrum
 //	*ParseError{File, Line, Column, HDU, Offset, Err}; sentinels ErrSyntax,
 //	  ErrColumns, ErrOrder, ErrNoData, ErrUnsupported, ErrMalformed, ErrTooLarge
-//	AirToVacuum, VacuumToAir (Morton 2000), (*Spectrum).ConvertFlux,
-//	  ToRestFrame, Deredden, Extinction (CCM89, F99), MaskTelluric
+//	(*Spectrum).ConvertFlux, ToRestFrame, Deredden, Extinction (CCM89, F99),
+//	  MaskTelluric (air wavelengths are converted on reading with
+//	  physics.AirToVacuumAll)
 //	FitBlackbody → *BlackbodyFit (T, scale, radius, velocity), Normalize
 //	FindFeatures → []Feature (wavelength, depth, width, EW, significance)
 //

@@ -12,6 +12,8 @@ import (
 	"strings"
 
 	"github.com/astrogo/fitsio"
+
+	"broadline/physics"
 )
 
 // recoverFITSPanics is true except in the fuzz test's diagnostic mode
@@ -485,16 +487,16 @@ func (fr *fitsReader) image(idx int, meta Metadata) (*Spectrum, error) {
 		return nil, fr.errf(idx, ErrMalformed, "wavelength step is 0")
 	}
 	ctype := strings.ToUpper(cardText(hdr, "CTYPE"+sfx))
-	med := Vacuum
+	med := physics.Vacuum
 	scheme := "linear"
 	switch ctype {
 	case "", "LINEAR", "WAVE", "WAVELENGTH", "LAMBDA":
 	case "AWAV":
-		med = Air
+		med = physics.Air
 	case "WAVE-LOG":
 		scheme = "log"
 	case "AWAV-LOG":
-		med, scheme = Air, "log"
+		med, scheme = physics.Air, "log"
 	default:
 		return nil, fr.errf(idx, ErrUnsupported, "CTYPE%s = %q (want WAVE, AWAV, WAVE-LOG, AWAV-LOG or LINEAR)", sfx, ctype)
 	}
@@ -558,7 +560,7 @@ func (fr *fitsReader) image(idx int, meta Metadata) (*Spectrum, error) {
 }
 
 // finish converts units and medium and builds the spectrum.
-func (fr *fitsReader) finish(idx int, meta Metadata, wave, flux, unc []float64, bad []bool, waveUnit, fluxUnit string, med Medium, what string) (*Spectrum, error) {
+func (fr *fitsReader) finish(idx int, meta Metadata, wave, flux, unc []float64, bad []bool, waveUnit, fluxUnit string, med physics.Medium, what string) (*Spectrum, error) {
 	wu := waveUnit
 	if fr.opt.WaveUnit != "" {
 		wu = fr.opt.WaveUnit
@@ -593,8 +595,8 @@ func (fr *fitsReader) finish(idx int, meta Metadata, wave, flux, unc []float64, 
 	for i := range wave {
 		wave[i] *= f
 	}
-	if med == Air {
-		AirToVacuumAll(wave)
+	if med == physics.Air {
+		physics.AirToVacuumAll(wave)
 	}
 	meta.FluxUnit = fluxU
 	meta.OriginalMedium = med
@@ -808,10 +810,10 @@ func (fr *fitsReader) table(idx int, meta Metadata) (*Spectrum, error) {
 			}
 		}
 	}
-	med := Vacuum
+	med := physics.Vacuum
 	wn := strings.ToLower(wc.name)
 	if strings.HasPrefix(wn, "awav") || strings.Contains(wn, "air") {
-		med = Air
+		med = physics.Air
 	}
 	return fr.finish(idx, meta, wave, flux, unc, bad, wc.unit, fc.unit, med, "binary table")
 }

@@ -11,6 +11,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 type fitsRef struct {
@@ -78,9 +80,9 @@ func TestReadFITSAgainstAstropy(t *testing.T) {
 		if factor == 0 {
 			t.Fatalf("%s: unknown reference unit %q", name, ref.RefWaveUnit)
 		}
-		wantMed := Vacuum
+		wantMed := physics.Vacuum
 		if ref.Medium == "air" {
-			wantMed = Air
+			wantMed = physics.Air
 		}
 		if s.Meta.OriginalMedium != wantMed {
 			t.Errorf("%s: medium %v, want %v", name, s.Meta.OriginalMedium, wantMed)
@@ -106,8 +108,8 @@ func TestReadFITSAgainstAstropy(t *testing.T) {
 		for i := range ref.Flux {
 			j := at(i)
 			w := s.Wavelength[j]
-			if wantMed == Air {
-				w = VacuumToAir(w)
+			if wantMed == physics.Air {
+				w = physics.VacuumToAir(w)
 			}
 			if want := ref.Wavelength[i] * factor; !scalar.EqualWithinAbsOrRel(w, want, 1e-9, 1e-12) {
 				t.Errorf("%s: λ[%d] = %.12g Å, astropy %.12g", name, i, w, want)
@@ -154,7 +156,7 @@ func TestReadFITSOptions(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if s.Meta.OriginalMedium != Air || s.Meta.FluxUnit != FluxPerAngstrom {
+	if s.Meta.OriginalMedium != physics.Air || s.Meta.FluxUnit != FluxPerAngstrom {
 		t.Errorf("medium %v unit %v", s.Meta.OriginalMedium, s.Meta.FluxUnit)
 	}
 	if s.Meta.Extra["CTYPE1"] != "WAVE" {

@@ -3,6 +3,8 @@ package spectra
 import (
 	"fmt"
 	"strings"
+
+	"broadline/physics"
 )
 
 // ReadOptions are the choices a user can make when reading a spectrum. The
@@ -34,14 +36,12 @@ type ReadOptions struct {
 	MaxBytes int64
 }
 
-func (o *ReadOptions) medium() (m Medium, set bool, err error) {
-	switch strings.ToLower(strings.TrimSpace(o.Medium)) {
-	case "":
-		return Vacuum, false, nil
-	case "vacuum", "vac":
-		return Vacuum, true, nil
-	case "air":
-		return Air, true, nil
+func (o *ReadOptions) medium() (m physics.Medium, set bool, err error) {
+	if strings.TrimSpace(o.Medium) == "" {
+		return physics.Vacuum, false, nil
 	}
-	return Vacuum, false, fmt.Errorf("spectra: unknown medium %q (want vacuum or air)", o.Medium)
+	if m, err = physics.ParseMedium(o.Medium); err != nil {
+		return physics.Vacuum, false, fmt.Errorf("spectra: %w", err)
+	}
+	return m, true, nil
 }

@@ -1,6 +1,10 @@
 package spectra
 
-import "math"
+import (
+	"math"
+
+	"broadline/physics"
+)
 
 // PlanckLambda returns the Planck function B_λ(T) in cgs,
 // erg s⁻¹ cm⁻² cm⁻¹ sr⁻¹ (per cm of wavelength), for a vacuum wavelength
@@ -13,19 +17,19 @@ func PlanckLambda(wavelength, temperature float64) float64 {
 	if temperature <= 0 || wavelength <= 0 {
 		return 0
 	}
-	lcm := wavelength * Angstrom
-	x := HCOverK / (wavelength * temperature)
+	lcm := wavelength * physics.Angstrom
+	x := physics.HCOverK / (wavelength * temperature)
 	if x > 700 {
 		return 0
 	}
 	l2 := lcm * lcm
-	return 2 * Planck * SpeedOfLight * SpeedOfLight / (l2 * l2 * lcm) / math.Expm1(x)
+	return 2 * physics.Planck * physics.SpeedOfLight * physics.SpeedOfLight / (l2 * l2 * lcm) / math.Expm1(x)
 }
 
 // PlanckLambdaPerAngstrom returns B_λ(T) in erg s⁻¹ cm⁻² Å⁻¹ sr⁻¹, that is
 // PlanckLambda × 1e-8.
 func PlanckLambdaPerAngstrom(wavelength, temperature float64) float64 {
-	return PlanckLambda(wavelength, temperature) * Angstrom
+	return PlanckLambda(wavelength, temperature) * physics.Angstrom
 }
 
 // PlanckNu returns B_ν(T) in erg s⁻¹ cm⁻² Hz⁻¹ sr⁻¹ for a frequency in Hz:
@@ -34,11 +38,11 @@ func PlanckNu(frequency, temperature float64) float64 {
 	if temperature <= 0 || frequency <= 0 {
 		return 0
 	}
-	x := Planck * frequency / (Boltzmann * temperature)
+	x := physics.Planck * frequency / (physics.Boltzmann * temperature)
 	if x > 700 {
 		return 0
 	}
-	return 2 * Planck * frequency * frequency * frequency / (SpeedOfLight * SpeedOfLight) / math.Expm1(x)
+	return 2 * physics.Planck * frequency * frequency * frequency / (physics.SpeedOfLight * physics.SpeedOfLight) / math.Expm1(x)
 }
 
 // BlackbodyFlux returns the flux density F_λ in erg s⁻¹ cm⁻² Å⁻¹ received
@@ -72,5 +76,5 @@ func BlackbodyFluxes(dst, wave []float64, temperature, radius, distance float64)
 // the root of x = 5(1 − e⁻ˣ).
 func WienPeak(temperature float64) float64 {
 	const x5 = 4.965114231744276303698759131322893944
-	return HCOverK / (x5 * temperature)
+	return physics.HCOverK / (x5 * temperature)
 }

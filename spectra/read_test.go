@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"broadline/physics"
 )
 
 func TestReadSniffsFormat(t *testing.T) {
@@ -36,7 +38,7 @@ func TestReadSniffsFormat(t *testing.T) {
 // TestSpectrumJSON: a spectrum saved as JSON (as a session would) reads
 // back equal, with readable unit and medium names.
 func TestSpectrumJSON(t *testing.T) {
-	s, _ := New([]float64{1, 2}, []float64{3, 4}, []float64{0.1, 0.2}, Metadata{FluxUnit: FluxMilliJansky, OriginalMedium: Air, Object: "INVENTED-3"})
+	s, _ := New([]float64{1, 2}, []float64{3, 4}, []float64{0.1, 0.2}, Metadata{FluxUnit: FluxMilliJansky, OriginalMedium: physics.Air, Object: "INVENTED-3"})
 	s.SetMask(1, MaskTelluric)
 	raw, err := json.Marshal(s)
 	if err != nil {
@@ -49,7 +51,7 @@ func TestSpectrumJSON(t *testing.T) {
 	if err := json.Unmarshal(raw, &back); err != nil {
 		t.Fatal(err)
 	}
-	if back.Meta.FluxUnit != s.Meta.FluxUnit || back.Meta.OriginalMedium != Air || back.Meta.Object != "INVENTED-3" || back.Mask[1] != MaskTelluric || back.Uncertainty[1] != 0.2 {
+	if back.Meta.FluxUnit != s.Meta.FluxUnit || back.Meta.OriginalMedium != physics.Air || back.Meta.Object != "INVENTED-3" || back.Mask[1] != MaskTelluric || back.Uncertainty[1] != 0.2 {
 		t.Errorf("round trip %+v", back)
 	}
 }

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"broadline/physics"
 )
 
 // Spectrum is one measured (or synthetic) spectrum.
@@ -80,40 +82,6 @@ func (m MaskReason) String() string {
 	return s
 }
 
-// Medium is the medium in which wavelengths were measured.
-type Medium uint8
-
-const (
-	// Vacuum wavelengths (the program's internal convention).
-	Vacuum Medium = iota
-	// Air wavelengths (standard air; converted with AirToVacuum).
-	Air
-)
-
-// String returns "vacuum" or "air".
-func (m Medium) String() string {
-	if m == Air {
-		return "air"
-	}
-	return "vacuum"
-}
-
-// MarshalText writes "vacuum" or "air".
-func (m Medium) MarshalText() ([]byte, error) { return []byte(m.String()), nil }
-
-// UnmarshalText reads "vacuum" or "air".
-func (m *Medium) UnmarshalText(b []byte) error {
-	switch string(b) {
-	case "vacuum":
-		*m = Vacuum
-	case "air":
-		*m = Air
-	default:
-		return fmt.Errorf("spectra: unknown medium %q (want vacuum or air)", b)
-	}
-	return nil
-}
-
 // Metadata describes a spectrum. Zero values mean "unknown".
 type Metadata struct {
 	// Source names where the spectrum came from (a file name, "synthetic").
@@ -133,7 +101,7 @@ type Metadata struct {
 	FluxUnit FluxUnit `json:"flux_unit"`
 	// OriginalMedium is the medium of the wavelengths in the file. The
 	// Wavelength slice is always vacuum; this only records what was converted.
-	OriginalMedium Medium `json:"original_medium"`
+	OriginalMedium physics.Medium `json:"original_medium"`
 	// Redshift is the redshift already removed from the wavelengths (0 if
 	// the spectrum is still in the observer's frame).
 	Redshift float64 `json:"redshift,omitempty"`

@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 func TestNewReversesAndMasksInvalid(t *testing.T) {
@@ -63,7 +65,7 @@ func TestPlanck(t *testing.T) {
 	if got := PlanckLambda(1e4, 5000); !scalar.EqualWithinRel(got, 7.102e13, 1e-3) {
 		t.Errorf("B_λ(1 µm, 5000 K) = %g, want 7.102e13", got)
 	}
-	if got := WienPeak(5000); !scalar.EqualWithinRel(got, 0.2897771955/5000/Angstrom, 1e-9) {
+	if got := WienPeak(5000); !scalar.EqualWithinRel(got, 0.2897771955/5000/physics.Angstrom, 1e-9) {
 		t.Errorf("Wien peak %g Å", got)
 	}
 	// The peak is a maximum of PlanckLambda.
@@ -72,18 +74,18 @@ func TestPlanck(t *testing.T) {
 		t.Error("WienPeak is not the maximum of B_λ")
 	}
 	// B_ν dν = B_λ dλ: B_ν = B_λ λ²/c.
-	lcm := 1e4 * Angstrom
-	nu := SpeedOfLight / lcm
-	if got, want := PlanckNu(nu, 5000), PlanckLambda(1e4, 5000)*lcm*lcm/SpeedOfLight; !scalar.EqualWithinRel(got, want, 1e-12) {
+	lcm := 1e4 * physics.Angstrom
+	nu := physics.SpeedOfLight / lcm
+	if got, want := PlanckNu(nu, 5000), PlanckLambda(1e4, 5000)*lcm*lcm/physics.SpeedOfLight; !scalar.EqualWithinRel(got, want, 1e-12) {
 		t.Errorf("B_ν = %g, want %g", got, want)
 	}
 	// ∫ π B_λ dλ = σT⁴ (Stefan–Boltzmann), by the trapezoid rule on a log grid.
 	g := LogGrid(100, 1e7, 200000)
 	var sum float64
 	for i := 1; i < len(g); i++ {
-		sum += 0.5 * (PlanckLambda(g[i], 5000) + PlanckLambda(g[i-1], 5000)) * (g[i] - g[i-1]) * Angstrom
+		sum += 0.5 * (PlanckLambda(g[i], 5000) + PlanckLambda(g[i-1], 5000)) * (g[i] - g[i-1]) * physics.Angstrom
 	}
-	if want := StefanBoltzmann * math.Pow(5000, 4) / math.Pi; !scalar.EqualWithinRel(sum, want, 1e-4) {
+	if want := physics.StefanBoltzmann * math.Pow(5000, 4) / math.Pi; !scalar.EqualWithinRel(sum, want, 1e-4) {
 		t.Errorf("∫B_λ dλ = %g, want σT⁴/π = %g", sum, want)
 	}
 }

@@ -4,11 +4,14 @@ import (
 	"bufio"
 	"bytes"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"strconv"
 	"strings"
 	"unsafe"
+
+	"broadline/physics"
 )
 
 // maxTextLine bounds the length of one line of a text spectrum.
@@ -609,13 +612,8 @@ func (t *textReader) finish() (*Spectrum, error) {
 		return nil, fail(err)
 	}
 	if !set && t.mediumText != "" {
-		switch strings.ToLower(t.mediumText) {
-		case "air":
-			med = Air
-		case "vacuum", "vac":
-			med = Vacuum
-		default:
-			return nil, fail(causef(ErrSyntax, "medium %q: want air or vacuum", t.mediumText))
+		if med, err = physics.ParseMedium(t.mediumText); err != nil {
+			return nil, fail(fmt.Errorf("%w: %w", ErrSyntax, err))
 		}
 	}
 	meta := t.meta
@@ -630,8 +628,8 @@ func (t *textReader) finish() (*Spectrum, error) {
 			t.wave[i] *= f
 		}
 	}
-	if med == Air {
-		AirToVacuumAll(t.wave)
+	if med == physics.Air {
+		physics.AirToVacuumAll(t.wave)
 	}
 	var unc []float64
 	uncNote := ""

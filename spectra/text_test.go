@@ -6,6 +6,8 @@ import (
 	"testing"
 
 	"gonum.org/v1/gonum/floats/scalar"
+
+	"broadline/physics"
 )
 
 func TestReadTextHeaderUnitsAndComments(t *testing.T) {
@@ -56,7 +58,7 @@ func TestReadTextNoHeaderDescendingAir(t *testing.T) {
 	if !scalar.EqualWithinAbs(s.Wavelength[0], 6564.614, 2e-3) || s.Flux[0] != 3 {
 		t.Errorf("first sample %v %v", s.Wavelength[0], s.Flux[0])
 	}
-	if s.Uncertainty != nil || s.Meta.OriginalMedium != Air {
+	if s.Uncertainty != nil || s.Meta.OriginalMedium != physics.Air {
 		t.Error("unexpected uncertainty or medium")
 	}
 }

@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"broadline/linelists"
+	"broadline/physics"
 )
 
 func init() {
@@ -104,7 +105,7 @@ func parseFloatFlag(s string) (float64, error) {
 func (f *linesFlags) options() (linelists.Options, error) {
 	var o linelists.Options
 	if f.medium != "" {
-		m, err := linelists.ParseMedium(f.medium)
+		m, err := physics.ParseMedium(f.medium)
 		if err != nil {
 			return o, usagef("--medium %q: want vacuum or air", f.medium)
 		}
@@ -168,7 +169,7 @@ func convertLines(out string, files []string, st *linelists.Store, rep linelists
 				meta = append(meta, linelists.KeyValue{Key: kv.Key, Value: kv.Value})
 			}
 		}
-		if fr.Medium == linelists.Air {
+		if fr.Medium == physics.Air {
 			comments = append(comments, fmt.Sprintf("%s gave air wavelengths; they were converted to vacuum (Morton 2000).", fr.Name))
 		}
 	}

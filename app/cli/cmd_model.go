@@ -18,6 +18,7 @@ import (
 	"broadline/linelists"
 	"broadline/opacity"
 	"broadline/opacity/synth"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -257,7 +258,7 @@ func (f *modelFlags) setup(ctx context.Context, vph, tph float64) (*modelSetup, 
 		return nil, err
 	}
 	ej := synth.Ejecta{
-		Time: days * spectra.Day, Mass: mass * spectra.SolarMass,
+		Time: days * physics.Day, Mass: mass * physics.SolarMass,
 		BetaIn: f.vin.beta, BetaPh: vph, BetaMax: vout,
 		DensityIndex: *f.index, Temperature: temp, Diluted: *f.diluted,
 	}
@@ -269,7 +270,7 @@ func (f *modelFlags) setup(ctx context.Context, vph, tph float64) (*modelSetup, 
 	// can act on the range.
 	fromA, toA := from*1e4, to*1e4
 	su := &modelSetup{comp: comp, ejecta: ej, settings: set, from: fromA, to: toA,
-		distance: *f.dist * spectra.Megaparsec, rp: *f.rp,
+		distance: *f.dist * physics.Megaparsec, rp: *f.rp,
 		filter: linelists.Filter{MinWavelength: fromA * math.Sqrt(1-vout*vout) / (1 + vout), MaxWavelength: toA / (1 - vout)}}
 	su.store, su.report, err = linelists.LoadContext(ctx, f.lines, linelists.Options{Levels: f.levels, Filter: su.filter, Workers: runtime.GOMAXPROCS(0)})
 	if err != nil {
@@ -359,7 +360,7 @@ func (f *modelFlags) setupDataset(ctx context.Context, vph, tph float64) (*model
 	}
 	return &modelSetup{model: sm, comp: comp, ejecta: ej, settings: set, store: b.Store,
 		report: linelists.Report{Lines: b.Store.Len(), Warnings: b.LoadWarnings},
-		bench:  b, observed: b.Observed[m.Epoch], distance: d.DistanceMpc * spectra.Megaparsec, rp: d.ResolvingPower,
+		bench:  b, observed: b.Observed[m.Epoch], distance: d.DistanceMpc * physics.Megaparsec, rp: d.ResolvingPower,
 		from: d.ModelFromUm * 1e4, to: d.ModelToUm * 1e4}, nil
 }
 

@@ -11,7 +11,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 func init() {
@@ -87,7 +87,7 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	workers := runtime.GOMAXPROCS(0)
-	x, err := opacity.ExpansionOpacity(context.Background(), st, p, days*spectra.Day, grid, workers)
+	x, err := opacity.ExpansionOpacity(context.Background(), st, p, days*physics.Day, grid, workers)
 	if err != nil {
 		return err
 	}
@@ -121,7 +121,7 @@ func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
 	if *census > 0 {
 		tau := make([]float64, st.Len())
 		lev := opacity.PlasmaLevelDensities(nil, st, p)
-		if err := opacity.Sobolev(context.Background(), tau, st, lev, p.Temperature, days*spectra.Day, workers); err != nil {
+		if err := opacity.Sobolev(context.Background(), tau, st, lev, p.Temperature, days*physics.Day, workers); err != nil {
 			return err
 		}
 		writeCensus(stderr, opacity.CountAbove(st, tau, *census))

@@ -12,7 +12,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 func parseOpacityCSV(t *testing.T, out string) (header []string, rows [][]float64) {
@@ -79,7 +79,7 @@ func TestOpacityCommand(t *testing.T) {
 		t.Fatal(err)
 	}
 	g, _ := opacity.LinearGrid(8000, 13000, 1000)
-	x, err := opacity.ExpansionOpacity(context.Background(), st, p, spectra.Day, g, 1)
+	x, err := opacity.ExpansionOpacity(context.Background(), st, p, physics.Day, g, 1)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -95,7 +95,7 @@ func TestOpacityCommand(t *testing.T) {
 	// --census counts, per species, the lines above a Sobolev τ threshold:
 	// the package's own depths decide what the command must print.
 	tau := make([]float64, st.Len())
-	if err := opacity.Sobolev(context.Background(), tau, st, opacity.PlasmaLevelDensities(nil, st, p), 5000, spectra.Day, 1); err != nil {
+	if err := opacity.Sobolev(context.Background(), tau, st, opacity.PlasmaLevelDensities(nil, st, p), 5000, physics.Day, 1); err != nil {
 		t.Fatal(err)
 	}
 	for _, thr := range []float64{1e-3, 1, 1e3} {

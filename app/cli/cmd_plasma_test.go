@@ -9,7 +9,7 @@ import (
 	"gonum.org/v1/gonum/floats/scalar"
 
 	"broadline/opacity"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // opacityTestList is an invented line list in our format: real Ca II and Sr II
@@ -94,7 +94,7 @@ func TestPlasmaCommand(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &got); err != nil {
 		t.Fatal(err)
 	}
-	kT := spectra.Boltzmann * 5000 / spectra.ElectronVolt
+	kT := physics.Boltzmann * 5000 / physics.ElectronVolt
 	want := 2 + 4*math.Exp(-1.692/kT) + 6*math.Exp(-1.700/kT)
 	if u := got.Species[1].PartitionFunction; !scalar.EqualWithinAbsOrRel(u, want, 0, 1e-9) {
 		t.Errorf("U(Ca II) from the list = %v, level sum %v", u, want)

@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -150,7 +151,7 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 		}
 	}
 	if f.fitBB || f.normBB {
-		bopt := spectra.BlackbodyFitOptions{Windows: windows, Distance: f.distMpc * spectra.Megaparsec}
+		bopt := spectra.BlackbodyFitOptions{Windows: windows, Distance: f.distMpc * physics.Megaparsec}
 		epoch := f.epoch
 		if epoch == 0 && bopt.Distance > 0 {
 			epoch = s.Meta.Epoch // from the file's metadata, if it says
@@ -315,8 +316,8 @@ func reportFit(fit *spectra.BlackbodyFit) *prepBlackbody {
 	if fit.Velocity > 0 {
 		b.VelocityKmS = fit.Velocity / 1e5
 		b.VelocityErrKmS = fit.VelErr / 1e5
-		b.VelocityFracC = fit.Velocity / spectra.SpeedOfLight
-		b.VelocityErrFracC = fit.VelErr / spectra.SpeedOfLight
+		b.VelocityFracC = fit.Velocity / physics.SpeedOfLight
+		b.VelocityErrFracC = fit.VelErr / physics.SpeedOfLight
 	}
 	return b
 }

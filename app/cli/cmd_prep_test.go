@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"broadline/physics"
 	"broadline/spectra"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -138,7 +139,7 @@ func TestPrepFITSRoundTrip(t *testing.T) {
 	// Sample 0: 3e-17 erg/s/cm²/Å at 8000 Å, dereddened by 10^(0.4 A) with
 	// A = E(B−V)·R_V·(A/A_V), then F_ν = F_λ λ²/c in mJy.
 	r, _ := spectra.Extinction(spectra.F99, 8000, 3.1)
-	want := 3.0000001167615996e-17 * math.Pow(10, 0.4*0.05*3.1*r) * 8000 * 8000 * 1e-8 / spectra.SpeedOfLight / 1e-26
+	want := 3.0000001167615996e-17 * math.Pow(10, 0.4*0.05*3.1*r) * 8000 * 8000 * 1e-8 / physics.SpeedOfLight / 1e-26
 	if !scalar.EqualWithinRel(s.Flux[0], want, 1e-6) {
 		t.Errorf("flux %v mJy, want %v", s.Flux[0], want)
 	}

@@ -11,6 +11,7 @@ import (
 	"strconv"
 
 	"broadline/opacity/fit"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -139,7 +140,7 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 			sw.Best, sw.BestChi2N, n, sw.AtEdge)
 	} else {
 		fmt.Fprintf(stderr, "sweep: best velocity_c=%.5f (%.0f km/s) chi2_per_sample=%.4g samples=%d at_edge=%v\n",
-			sw.Best, sw.Best*spectra.SpeedOfLightKmS, sw.BestChi2N, n, sw.AtEdge)
+			sw.Best, sw.Best*physics.SpeedOfLightKmS, sw.BestChi2N, n, sw.AtEdge)
 	}
 	if sw.AtEdge {
 		fmt.Fprintln(stderr, "sweep: warning: the least χ²/N is at an end of the range; the minimum may lie outside it")

@@ -10,6 +10,7 @@ import (
 	"broadline/linelists"
 	"broadline/opacity/fit"
 	"broadline/opacity/synth"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -93,9 +94,9 @@ func (b *Bench) ComputeAt(ctx context.Context, m Model, without int, days float6
 	}
 	ej := b.Data.Ejecta(m)
 	if days > 0 {
-		ej.Time = days * spectra.Day
+		ej.Time = days * physics.Day
 	}
-	ov, err := fit.CompareModel(ctx, sm, comp, ej, set, b.Data.DistanceMpc*spectra.Megaparsec, b.Observed[m.Epoch], b.Data.ResolvingPower)
+	ov, err := fit.CompareModel(ctx, sm, comp, ej, set, b.Data.DistanceMpc*physics.Megaparsec, b.Observed[m.Epoch], b.Data.ResolvingPower)
 	if err != nil {
 		return nil, err
 	}

@@ -4,7 +4,7 @@ import (
 	"fmt"
 
 	"broadline/opacity/synth"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // Model is the one description of a model spectrum the workbench, its
@@ -59,7 +59,7 @@ func (m Model) Validate(d *Dataset) error {
 func (d *Dataset) Ejecta(m Model) synth.Ejecta {
 	e := d.Epochs[m.Epoch]
 	return synth.Ejecta{
-		Time: e.Days * spectra.Day, Mass: d.EjectaMass * spectra.SolarMass,
+		Time: e.Days * physics.Day, Mass: d.EjectaMass * physics.SolarMass,
 		BetaIn: d.InnerVelocity, BetaPh: m.PhotosphereVelocity, BetaMax: d.OuterVelocity,
 		DensityIndex: d.DensityIndex, Temperature: m.Temperature, Diluted: d.Diluted,
 	}

@@ -1,11 +1,10 @@
 package core
 
 import (
+	"broadline/physics"
 	"fmt"
 	"strconv"
 	"strings"
-
-	"broadline/spectra"
 )
 
 // ParseVelocity reads "0.2c" or "60000km/s" (spaces allowed before the unit)
@@ -16,7 +15,7 @@ func ParseVelocity(s string) (float64, error) {
 	var scale float64
 	switch {
 	case strings.HasSuffix(t, "km/s"):
-		num, scale = strings.TrimSuffix(t, "km/s"), 1/spectra.SpeedOfLightKmS
+		num, scale = strings.TrimSuffix(t, "km/s"), 1/physics.SpeedOfLightKmS
 	case strings.HasSuffix(t, "c"):
 		num, scale = strings.TrimSuffix(t, "c"), 1
 	default:

@@ -20,6 +20,7 @@ import (
 	"broadline/app/core"
 	"broadline/app/figure"
 	"broadline/opacity/synth"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -294,7 +295,7 @@ func (wb *workbench) syncControls() {
 }
 
 func (wb *workbench) showValues() {
-	wb.velLabel.SetText(fmt.Sprintf("%.3f c  (%.0f km/s)", wb.sess.PhotosphereVelocity, wb.sess.PhotosphereVelocity*spectra.SpeedOfLightKmS))
+	wb.velLabel.SetText(fmt.Sprintf("%.3f c  (%.0f km/s)", wb.sess.PhotosphereVelocity, wb.sess.PhotosphereVelocity*physics.SpeedOfLightKmS))
 	wb.tempLabel.SetText(fmt.Sprintf("%.0f K", wb.sess.Temperature))
 }
 

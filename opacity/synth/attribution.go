@@ -9,7 +9,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // KnockOut is the spectrum with one element's lines removed.
@@ -207,7 +207,7 @@ func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int
 	hi := sort.SearchFloat64s(st.Wavelength, math.Nextafter(to/shift, math.Inf(1)))
 	T := ej.TemperatureAt(ej.BetaPh)
 	sf := s.sf[0]
-	kT := spectra.Boltzmann * T / spectra.ElectronVolt
+	kT := physics.Boltzmann * T / physics.ElectronVolt
 	var top []LineContribution
 	for l := lo; l < hi; l++ {
 		f := sf[st.Species[l]]
@@ -216,7 +216,7 @@ func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int
 		}
 		lam := st.Wavelength[l]
 		e := st.Levels.Energy[st.Lower[l]]
-		tau := s.scale * f * m.gfl[l] * math.Exp(-e/kT) * -math.Expm1(-spectra.HCOverK/(lam*T))
+		tau := s.scale * f * m.gfl[l] * math.Exp(-e/kT) * -math.Expm1(-physics.HCOverK/(lam*T))
 		if len(top) == nLines && tau <= top[len(top)-1].TauPhotosphere {
 			continue
 		}

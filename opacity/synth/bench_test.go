@@ -11,7 +11,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // benchStore returns an invented store of n lines over 2500–50000 Å in 16
@@ -57,7 +57,7 @@ func BenchmarkMillionLines(b *testing.B) {
 	}
 	comps := []string{"Sr=0.3,Y=0.1,Zr=0.2,Ba=0.1,La=0.05,Ce=0.05,Nd=0.15,Sm=0.05",
 		"Sr=0.2,Y=0.1,Zr=0.2,Ba=0.1,La=0.1,Ce=0.05,Nd=0.2,Sm=0.05"}
-	ej := Ejecta{Time: 1.5 * spectra.Day, Mass: 0.04 * spectra.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
+	ej := Ejecta{Time: 1.5 * physics.Day, Mass: 0.04 * physics.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
 		BetaMax: 0.35, DensityIndex: 3, Temperature: 5000}
 	ctx := context.Background()
 	for _, c := range []struct {
@@ -123,7 +123,7 @@ func cpuSeconds() float64 {
 // number of lines (binning): 10⁴, 10⁵ and 10⁶ invented lines, full integral,
 // 0.4–2.5 µm.
 func BenchmarkLineCount(b *testing.B) {
-	ej := Ejecta{Time: 1.5 * spectra.Day, Mass: 0.04 * spectra.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
+	ej := Ejecta{Time: 1.5 * physics.Day, Mass: 0.04 * physics.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
 		BetaMax: 0.35, DensityIndex: 3, Temperature: 5000}
 	comps := []string{"Sr=0.3,Y=0.1,Zr=0.2,Ba=0.1,La=0.05,Ce=0.05,Nd=0.15,Sm=0.05",
 		"Sr=0.2,Y=0.1,Zr=0.2,Ba=0.1,La=0.1,Ce=0.05,Nd=0.2,Sm=0.05"}

@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // Ejecta describes homologously expanding ejecta with a sharp photosphere:
@@ -71,7 +71,7 @@ func (e Ejecta) Density(beta float64) float64 {
 	if beta < e.BetaIn || beta > e.BetaMax {
 		return 0
 	}
-	ct := spectra.SpeedOfLight * e.Time
+	ct := physics.SpeedOfLight * e.Time
 	return e.Mass / (4 * math.Pi * ct * ct * ct * e.massIntegral()) * math.Pow(beta, -e.DensityIndex)
 }
 
@@ -85,4 +85,4 @@ func (e Ejecta) TemperatureAt(beta float64) float64 {
 }
 
 // PhotosphereRadius returns R_ph = v_ph t in cm.
-func (e Ejecta) PhotosphereRadius() float64 { return e.BetaPh * spectra.SpeedOfLight * e.Time }
+func (e Ejecta) PhotosphereRadius() float64 { return e.BetaPh * physics.SpeedOfLight * e.Time }

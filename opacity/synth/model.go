@@ -9,6 +9,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -289,7 +290,7 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 	g := math.Max(ej.BetaMax, rangeBeta)
 	lo := int(math.Floor(-math.Log((1+g)/math.Sqrt(1-g*g))/m.step)) - 2
 	hi := m.nObs + int(math.Ceil(-math.Log(1-g)/m.step)) + 2
-	s := &state{env: env, lo: lo, hi: hi, scale: spectra.ClassicalLineCrossSection * spectra.Angstrom * ej.Time,
+	s := &state{env: env, lo: lo, hi: hi, scale: physics.ClassicalLineCrossSection * physics.Angstrom * ej.Time,
 		species: m.store.SpeciesTable}
 	part := m.partitionFunc()
 	for k := range nodes {
@@ -311,7 +312,7 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 		st := make([]float64, hi-lo)
 		for b := range st {
 			lam := m.from * math.Exp(float64(lo+b)*m.step)
-			st[b] = -math.Expm1(-spectra.HCOverK / (lam * T))
+			st[b] = -math.Expm1(-physics.HCOverK / (lam * T))
 		}
 		s.stim = append(s.stim, st)
 	}

@@ -9,6 +9,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/physics"
 	"broadline/spectra"
 
 	"gonum.org/v1/gonum/floats/scalar"
@@ -48,7 +49,7 @@ func testStore(t testing.TB, nWeak int) *linelists.Store {
 
 func testEjecta() Ejecta {
 	return Ejecta{
-		Time: 1.5 * spectra.Day, Mass: 0.03 * spectra.SolarMass,
+		Time: 1.5 * physics.Day, Mass: 0.03 * physics.SolarMass,
 		BetaIn: 0.05, BetaPh: 0.2, BetaMax: 0.3, DensityIndex: 3, Temperature: 5000,
 	}
 }
@@ -58,7 +59,7 @@ func testEjecta() Ejecta {
 // and that 4π ∫ r² ρ dr recovers the mass for other indices (gonum quad).
 func TestDensityScale(t *testing.T) {
 	t.Parallel()
-	e := Ejecta{Time: spectra.Day, Mass: 0.01 * spectra.SolarMass, BetaPh: 0.05, BetaMax: 0.1, Temperature: 5000}
+	e := Ejecta{Time: physics.Day, Mass: 0.01 * physics.SolarMass, BetaPh: 0.05, BetaMax: 0.1, Temperature: 5000}
 	if err := e.Validate(); err != nil {
 		t.Fatal(err)
 	}
@@ -66,14 +67,14 @@ func TestDensityScale(t *testing.T) {
 		t.Errorf("uniform sphere density %g, want 2.7e-13 g cm⁻³", rho)
 	}
 	e2 := e
-	e2.Time = 2 * spectra.Day
+	e2.Time = 2 * physics.Day
 	if r := e.Density(0.07) / e2.Density(0.07); !scalar.EqualWithinRel(r, 8, 1e-12) {
 		t.Errorf("ρ(1 d)/ρ(2 d) = %g, want 8 (t⁻³)", r)
 	}
 	for _, n := range []float64{0, 1.5, 3, 5, 8} {
 		e := testEjecta()
 		e.DensityIndex = n
-		ct := spectra.SpeedOfLight * e.Time
+		ct := physics.SpeedOfLight * e.Time
 		m := quad.Fixed(func(b float64) float64 {
 			r := b * ct
 			return 4 * math.Pi * r * r * e.Density(b) * ct

@@ -3,6 +3,7 @@ package synth
 import (
 	"fmt"
 
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -47,6 +48,6 @@ func (r *Result) Spectrum(normalized bool) (*spectra.Spectrum, error) {
 		unit = spectra.FluxNormalized
 		y = r.Normalized
 	}
-	meta := spectra.Metadata{Source: src, FluxUnit: unit, Epoch: r.Ejecta.Time / spectra.Day}
+	meta := spectra.Metadata{Source: src, FluxUnit: unit, Epoch: r.Ejecta.Time / physics.Day}
 	return spectra.New(append([]float64(nil), r.Wavelength...), append([]float64(nil), y...), nil, meta)
 }

@@ -11,6 +11,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -141,7 +142,7 @@ func (s *Scenario) Composition() opacity.Composition {
 func (s *Scenario) Ejecta(i int) Ejecta {
 	e := s.Epochs[i]
 	return Ejecta{
-		Time: e.Days * spectra.Day, Mass: s.EjectaMassSolar * spectra.SolarMass,
+		Time: e.Days * physics.Day, Mass: s.EjectaMassSolar * physics.SolarMass,
 		BetaIn: s.InnerVelocity, BetaPh: e.PhotosphereVelocity, BetaMax: s.OuterVelocity,
 		DensityIndex: s.DensityIndex, Temperature: e.Temperature, Diluted: s.Diluted,
 	}
@@ -214,7 +215,7 @@ func (s *Scenario) Truth(ctx context.Context, m *Model, i int, betaPh float64, w
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	d := s.DistanceMpc * spectra.Megaparsec
+	d := s.DistanceMpc * physics.Megaparsec
 	res.Flux = res.AtDistance(d)
 	wave = s.Instrument.Pixels()
 	flux, _, err = res.Observe(s.Instrument.ResolvingPower, wave)

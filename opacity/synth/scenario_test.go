@@ -9,7 +9,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
-	"broadline/spectra"
+	"broadline/physics"
 )
 
 // TestReadScenario reads the committed demo scenario and checks that bad
@@ -149,7 +149,7 @@ func TestDemoOpacityRanges(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		x, err := opacity.ExpansionOpacity(context.Background(), st, p, spectra.Day, grid, 2)
+		x, err := opacity.ExpansionOpacity(context.Background(), st, p, physics.Day, grid, 2)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Reference values for spectra/constants_test.go.
+"""Reference values for physics/constants_test.go.
 
 Run with Debian's python3-astropy (apt install python3-astropy):
     /usr/bin/python3 testdata/constants/gen_constants.py > testdata/constants/astropy_constants.json

@@ -1,4 +1,4 @@
-package opacity
+package kernels
 
 import "math"
 
@@ -18,14 +18,14 @@ const (
 	ln2Lo = 1.90821492927058770002e-10 / 64
 )
 
-// fastExp returns e^y to within 2 ulp for the hot loops, by the
+// Exp returns e^y to within 2 ulp for the hot loops, by the
 // table-driven method (Tang 1989, ACM TOMS 15, 144): y = (64m + j)·ln2/64 + r
 // with |r| ≤ ln2/128, e^y = 2^m · 2^(j/64) · e^r, and e^r by its Taylor
 // polynomial to r⁵ (truncation < r⁶/720 = 3.5e-17). It returns 0 for
 // y < −708 (where e^y is subnormal or zero; the callers multiply it into
 // quantities that are negligible there) and defers to math.Exp above 709 and
 // for NaN.
-func fastExp(y float64) float64 {
+func Exp(y float64) float64 {
 	if !(y > -708) {
 		if y != y {
 			return y
@@ -45,7 +45,7 @@ func fastExp(y float64) float64 {
 	return math.FMA(t, q, t) * scale
 }
 
-// expTable16[j] = 2^(j/16), for escape and its vector loops.
+// expTable16[j] = 2^(j/16), for Escape and its vector loops.
 var expTable16 = func() (t [16]float64) {
 	for j := range t {
 		t[j] = math.Exp2(float64(j) / 16)

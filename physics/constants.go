@@ -1,4 +1,4 @@
-package spectra
+package physics
 
 import "gonum.org/v1/gonum/unit/constant"
 
@@ -57,6 +57,13 @@ const (
 	HCOverK = Planck * SpeedOfLight / Boltzmann / Angstrom
 	// SpeedOfLightKmS is c in km s⁻¹.
 	SpeedOfLightKmS = SpeedOfLight / 1e5
+	// InvCmToEV converts a wavenumber in cm⁻¹ to an energy in eV: hc/e with
+	// c in cm s⁻¹ (1.239841984e-4 eV per cm⁻¹). Divide by it for the
+	// reverse.
+	InvCmToEV = Planck * SpeedOfLight / ElectronVolt
+	// BoltzmannEV is k in eV K⁻¹ (8.617333262e-5), the quotient of gonum's
+	// SI values k[J K⁻¹]/e[C].
+	BoltzmannEV = float64(constant.Boltzmann) / float64(constant.ElementaryCharge)
 )
 
 const (

@@ -1,4 +1,4 @@
-package spectra
+package physics
 
 // Air ↔ vacuum conversion with the IAU standard (Morton 2000, ApJS 130,
 // 403, eq. 8, after Birch & Downs 1994): with s = 10⁴/λ_vac (λ in Å),

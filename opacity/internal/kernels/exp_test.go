@@ -1,4 +1,4 @@
-package opacity
+package kernels
 
 import (
 	"math"
@@ -6,9 +6,9 @@ import (
 	"testing"
 )
 
-// TestFastExp compares fastExp with the standard library's math.Exp (the
+// TestExp compares Exp with the standard library's math.Exp (the
 // reference implementation here) over the range the hot loops use.
-func TestFastExp(t *testing.T) {
+func TestExp(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 1))
 	worst := 0.0
 	for i := range 2_000_000 {
@@ -23,23 +23,23 @@ func TestFastExp(t *testing.T) {
 		default:
 			y = -1 + 2*r.Float64()
 		}
-		got, want := fastExp(y), math.Exp(y)
+		got, want := Exp(y), math.Exp(y)
 		rel := math.Abs(got-want) / want
 		worst = max(worst, rel)
 		if rel > 4.5e-16 { // 2 ulp
-			t.Fatalf("fastExp(%v) = %v, math.Exp %v (relative error %g)", y, got, want, rel)
+			t.Fatalf("Exp(%v) = %v, math.Exp %v (relative error %g)", y, got, want, rel)
 		}
 	}
 	t.Logf("worst relative error %g", worst)
 	for _, c := range []struct{ y, want float64 }{
 		{0, 1}, {math.Inf(-1), 0}, {-800, 0}, {710, math.Exp(710)}, {math.Inf(1), math.Inf(1)},
 	} {
-		if got := fastExp(c.y); got != c.want {
-			t.Errorf("fastExp(%v) = %v, want %v", c.y, got, c.want)
+		if got := Exp(c.y); got != c.want {
+			t.Errorf("Exp(%v) = %v, want %v", c.y, got, c.want)
 		}
 	}
-	if !math.IsNaN(fastExp(math.NaN())) {
-		t.Error("fastExp(NaN) is not NaN")
+	if !math.IsNaN(Exp(math.NaN())) {
+		t.Error("Exp(NaN) is not NaN")
 	}
 }
 
@@ -61,7 +61,7 @@ func BenchmarkExp(b *testing.B) {
 	b.Run("fast", func(b *testing.B) {
 		for b.Loop() {
 			for _, y := range ys {
-				s += fastExp(y)
+				s += Exp(y)
 			}
 		}
 		b.ReportMetric(float64(b.N*len(ys))/b.Elapsed().Seconds(), "exp/s")
@@ -77,14 +77,14 @@ func TestEscape(t *testing.T) {
 	r := rand.New(rand.NewPCG(2, 3))
 	for range 1_000_000 {
 		tau := math.Pow(10, -30+36*r.Float64())
-		got, want := escape(tau), -math.Expm1(-tau)
+		got, want := Escape(tau), -math.Expm1(-tau)
 		if rel := math.Abs(got-want) / want; rel > 3e-14 {
-			t.Fatalf("escape(%v) = %v, want %v (relative error %g)", tau, got, want, rel)
+			t.Fatalf("Escape(%v) = %v, want %v (relative error %g)", tau, got, want, rel)
 		}
 	}
 	for _, c := range []struct{ tau, want float64 }{{0, 0}, {1e-300, 1e-300}, {800, 1}, {math.Inf(1), 1}} {
-		if got := escape(c.tau); got != c.want {
-			t.Errorf("escape(%v) = %v, want %v", c.tau, got, c.want)
+		if got := Escape(c.tau); got != c.want {
+			t.Errorf("Escape(%v) = %v, want %v", c.tau, got, c.want)
 		}
 	}
 }

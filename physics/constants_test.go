@@ -1,4 +1,4 @@
-package spectra
+package physics
 
 import (
 	"encoding/json"
@@ -70,5 +70,20 @@ func TestDerivedConstants(t *testing.T) {
 	}
 	if math.Abs(SpeedOfLightKmS-299792.458) > 1e-9 {
 		t.Errorf("c = %v km/s", SpeedOfLightKmS)
+	}
+}
+
+// TestEnergyConstants checks the eV-based combinations against CODATA 2018
+// (NIST): k = 8.617333262e-5 eV K⁻¹ and hc = 1.239841984e-4 eV cm.
+func TestEnergyConstants(t *testing.T) {
+	if !scalar.EqualWithinRel(BoltzmannEV, 8.617333262e-5, 1e-9) {
+		t.Errorf("k = %v eV/K, CODATA 2018 8.617333262e-5", BoltzmannEV)
+	}
+	if !scalar.EqualWithinRel(InvCmToEV, 1.239841984e-4, 1e-9) {
+		t.Errorf("hc = %v eV cm, CODATA 2018 1.239841984e-4", InvCmToEV)
+	}
+	// The same k from the cgs constants, to rounding.
+	if !scalar.EqualWithinRel(BoltzmannEV, Boltzmann/ElectronVolt, 1e-15) {
+		t.Errorf("k/e = %v, Boltzmann/ElectronVolt = %v", BoltzmannEV, Boltzmann/ElectronVolt)
 	}
 }

@@ -1,8 +1,10 @@
+//go:build amd64 && !noasm
+
 #include "textflag.h"
 
 #define PFD 2048
 
-// The vector loops take the steps of escape (expansion.go) lane by lane,
+// The vector loops take the steps of Escape (escape.go) lane by lane,
 // with the same constants and the same fused multiply-adds, so they give
 // the same bits as the portable Go loop.
 
