@@ -67,8 +67,9 @@ func integratedTime(chains [][]float64) float64 {
 	if f[0] == 0 {
 		return math.NaN()
 	}
+	f0 := f[0]
 	for i := range f {
-		f[i] /= f[0]
+		f[i] /= f0
 	}
 	tau := 1.0
 	for m := 1; m < n; m++ {
