@@ -69,8 +69,13 @@ func testEjecta(days, beta, T float64) synth.Ejecta {
 
 // makeInjection synthesises composition comp at the given ejecta, observed
 // at R = 800 with 2 pixels per resolution element over 7700–11600 Å, with
-// Gaussian noise of σ = continuum/snr (seeded).
-func makeInjection(t testing.TB, m *synth.Model, comp string, ejs []synth.Ejecta, snr float64, seed uint64) *injection {
+// Gaussian noise of σ = continuum/snr (seeded), with testSettings or the
+// settings given.
+func makeInjection(t testing.TB, m *synth.Model, comp string, ejs []synth.Ejecta, snr float64, seed uint64, settings ...synth.Settings) *injection {
+	set := testSettings
+	if len(settings) > 0 {
+		set = settings[0]
+	}
 	t.Helper()
 	c, err := opacity.ParseComposition(comp)
 	if err != nil {
@@ -84,7 +89,7 @@ func makeInjection(t testing.TB, m *synth.Model, comp string, ejs []synth.Ejecta
 		wave = append(wave, l)
 	}
 	for i, ej := range ejs {
-		res, err := m.Spectrum(context.Background(), c, ej, testSettings)
+		res, err := m.Spectrum(context.Background(), c, ej, set)
 		if err != nil {
 			t.Fatal(err)
 		}

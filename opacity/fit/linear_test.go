@@ -3,6 +3,8 @@ package fit
 import (
 	"math"
 	"testing"
+
+	"broadline/opacity/synth"
 )
 
 // TestLinearFitByHand checks the analytic scale and correction against
@@ -51,5 +53,36 @@ func TestLinearFitByHand(t *testing.T) {
 	// A zero model has no scale.
 	if _, err := linearFit([]float64{1, 2, 3}, one, []float64{0, 0, 0}, legendreBasis(w, 0)); err == nil {
 		t.Error("a zero model got a scale")
+	}
+}
+
+// TestOuterSafe: photosphere velocities whose outermost node, computed as
+// synth.Envelope.Node computes it, rounds above v_max are moved down by
+// ulps; others are left alone. 0.17601429198058277 with v_max = 0.32 and 8
+// nodes gives 0.32000000000000006 (found by the sampler).
+func TestOuterSafe(t *testing.T) {
+	env := synth.Envelope{BetaPh: 0.17601429198058277, BetaMax: 0.32, Nodes: 8}
+	if env.Node(7) <= 0.32 {
+		t.Log("synth's outer node no longer rounds above v_max here")
+	}
+	moved := 0
+	for i := range 20000 {
+		ph := 0.07 + 0.2*float64(i)/20000
+		if i == 0 {
+			ph = env.BetaPh
+		}
+		for _, n := range []int{8, 16} {
+			got := outerSafe(ph, 0.32, n)
+			e := synth.Envelope{BetaPh: got, BetaMax: 0.32, Nodes: n}
+			if e.Node(n-1) > 0.32 || math.Abs(got-ph) > 1e-15 {
+				t.Fatalf("v_ph %v → %v: outer node %v", ph, got, e.Node(n-1))
+			}
+			if got != ph {
+				moved++
+			}
+		}
+	}
+	if moved == 0 {
+		t.Error("no velocity needed moving, not even the one the sampler found")
 	}
 }

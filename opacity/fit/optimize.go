@@ -59,10 +59,7 @@ func (p *Problem) Fit(ctx context.Context, progress func(done, total int)) (*Fit
 		return nil, err
 	}
 	dim := len(c.params)
-	budget := p.MaxEvaluations
-	if budget == 0 {
-		budget = max(300, 150*dim)
-	}
+	budget := p.maxEvaluations(dim)
 	toTheta := func(dst, u []float64) []float64 {
 		for i, par := range c.params {
 			dst[i] = par.Lower + (par.Upper-par.Lower)/(1+math.Exp(-u[i]))
@@ -178,4 +175,12 @@ func (stopRecorder) Init() error { return nil }
 
 func (r stopRecorder) Record(*optimize.Location, optimize.Operation, *optimize.Stats) error {
 	return *r.err
+}
+
+// maxEvaluations returns MaxEvaluations or its default for dim parameters.
+func (p *Problem) maxEvaluations(dim int) int {
+	if p.MaxEvaluations > 0 {
+		return p.MaxEvaluations
+	}
+	return max(300, 150*dim)
 }

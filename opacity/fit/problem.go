@@ -499,7 +499,7 @@ func (c *compiled) evaluate(ctx context.Context, x []float64, keep bool, workers
 		ed := &c.epochs[e]
 		ej := ed.ej
 		if ed.vIdx >= 0 {
-			ej.BetaPh = x[ed.vIdx]
+			ej.BetaPh = outerSafe(x[ed.vIdx], ej.BetaMax, set.Nodes)
 		}
 		if ed.tIdx >= 0 {
 			ej.Temperature = x[ed.tIdx]
@@ -650,4 +650,23 @@ func describeFree(ps []Parameter) string {
 		names[i] = p.Name
 	}
 	return strings.Join(names, ", ")
+}
+
+// outerSafe returns the photosphere velocity ph, moved down by a few ulps
+// where needed so that the synthesis's outermost velocity node (of nodes,
+// ≤ 0 meaning synth.DefaultNodes), computed as synth.Envelope.Node does,
+// ph + (max − ph)·(n−1)/(n−1), does not round above max: there the density
+// law is zero and the plasma solve fails.
+func outerSafe(ph, vmax float64, nodes int) float64 {
+	if nodes <= 0 {
+		nodes = synth.DefaultNodes
+	}
+	k := float64(nodes - 1)
+	for range 16 {
+		if ph+(vmax-ph)*k/k <= vmax {
+			return ph
+		}
+		ph = math.Nextafter(ph, 0)
+	}
+	return ph
 }
