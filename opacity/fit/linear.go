@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"errors"
 	"fmt"
 	"math"
 
@@ -65,6 +66,10 @@ func chi2Fixed(y, sigma, m []float64) float64 {
 	return s
 }
 
+// errDegenerate says the model has no flux (or no independent correction
+// terms) on the compared samples, so no scale is defined.
+var errDegenerate = errors.New("the model flux is zero or degenerate on the compared samples: no flux scale fits")
+
 // linearSolution is the best multiplicative correction of a model.
 type linearSolution struct {
 	coef   []float64
@@ -100,7 +105,7 @@ func linearFit(y, sigma, m []float64, basis [][]float64) (linearSolution, error)
 	}
 	var ch mat.Cholesky
 	if !ch.Factorize(A) {
-		return linearSolution{}, fmt.Errorf("the model flux is zero or degenerate on the compared samples: no flux scale fits")
+		return linearSolution{}, errDegenerate
 	}
 	var c mat.VecDense
 	if err := ch.SolveVecTo(&c, g); err != nil {

@@ -124,7 +124,8 @@ type Posterior struct {
 // logPosterior returns the log posterior at x: −∞ outside the prior,
 // else −½ Σ_e (χ²_e + ln det A_e), the Gaussian likelihood with each
 // epoch's linear coefficients marginalised over flat priors (A_e their
-// normal matrix; nothing for a fixed scale).
+// normal matrix; nothing for a fixed scale). A model without flux on an
+// epoch's samples, whose scale is undefined, has zero density.
 func (c *compiled) logPosterior(ctx context.Context, x []float64, workers int) (float64, error) {
 	evs, err := c.evaluate(ctx, x, false, workers)
 	if errors.Is(err, errOutside) {
@@ -135,6 +136,9 @@ func (c *compiled) logPosterior(ctx context.Context, x []float64, workers int) (
 	}
 	s := 0.0
 	for _, ev := range evs {
+		if ev.degenerate {
+			return math.Inf(-1), nil
+		}
 		s += ev.chi2 + ev.logDet
 	}
 	return -s / 2, nil

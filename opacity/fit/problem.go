@@ -475,6 +475,9 @@ type epochEval struct {
 	n      int
 	coef   []float64 // scale and correction coefficients (nil: fixed scale)
 	logDet float64   // ln det of the linear normal matrix (0: fixed scale)
+	// degenerate: the model has no flux on the compared samples, so no
+	// scale is defined (χ² is Σ (y/σ)²; the sampler gives it zero density).
+	degenerate bool
 	model  []float64 // model flux on ed.grid, corrected (only when kept)
 	ej     synth.Ejecta
 	warn   []string
@@ -522,10 +525,17 @@ func (c *compiled) evaluate(ctx context.Context, x []float64, keep bool, workers
 			ev.chi2 = chi2Fixed(ed.y, ed.sigma, m)
 		} else {
 			ls, err := linearFit(ed.y, ed.sigma, m, ed.basis)
-			if err != nil {
+			switch {
+			case errors.Is(err, errDegenerate):
+				// No flux to scale: any scale gives χ² = Σ (y/σ)².
+				ev.degenerate = true
+				ev.chi2 = chi2Fixed(ed.y, ed.sigma, make([]float64, len(m)))
+				ev.coef = make([]float64, c.nLinear)
+			case err != nil:
 				return nil, fmt.Errorf("fit: epoch %d: %w", e+1, err)
+			default:
+				ev.chi2, ev.coef, ev.logDet = ls.chi2, ls.coef, ls.logDet
 			}
-			ev.chi2, ev.coef, ev.logDet = ls.chi2, ls.coef, ls.logDet
 		}
 		if keep {
 			ev.model = correctedModel(flux, ed, ev.coef)
