@@ -478,9 +478,9 @@ type epochEval struct {
 	// degenerate: the model has no flux on the compared samples, so no
 	// scale is defined (χ² is Σ (y/σ)²; the sampler gives it zero density).
 	degenerate bool
-	model  []float64 // model flux on ed.grid, corrected (only when kept)
-	ej     synth.Ejecta
-	warn   []string
+	model      []float64 // model flux on ed.grid, corrected (only when kept)
+	ej         synth.Ejecta
+	warn       []string
 }
 
 // evaluate computes every epoch's χ² at x. keep keeps the corrected model
