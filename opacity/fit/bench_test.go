@@ -1,0 +1,115 @@
+package fit
+
+import (
+	"context"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"testing"
+
+	"broadline/linelists"
+	"broadline/opacity"
+	"broadline/opacity/synth"
+	"broadline/spectra"
+)
+
+// millionLineStore returns an invented store of n lines over 2500–50000 Å
+// in 16 species (Sr, Y, Zr, Ba, La, Ce, Nd, Sm II and III), 400 levels
+// each, with log gf spread so that most lines are weak (as
+// opacity/synth's benchmark store).
+func millionLineStore(b *testing.B, n int) *linelists.Store {
+	b.Helper()
+	names := []string{"Sr II", "Y II", "Zr II", "Ba II", "La II", "Ce II", "Nd II", "Sm II",
+		"Sr III", "Y III", "Zr III", "Ba III", "La III", "Ce III", "Nd III", "Sm III"}
+	rng := rand.New(rand.NewPCG(2, 3))
+	bl := linelists.NewBuilder()
+	levels := make([][]float64, len(names))
+	for s := range names {
+		levels[s] = make([]float64, 400)
+		for k := range levels[s] {
+			levels[s][k] = 6 * rng.Float64() * rng.Float64()
+		}
+		levels[s][0] = 0
+	}
+	for range n {
+		s := rng.IntN(len(names))
+		bl.Add(linelists.Line{
+			Wavelength:  2500 * math.Exp(rng.Float64()*math.Log(20)),
+			LogGF:       -5 + 5*math.Pow(rng.Float64(), 3),
+			Species:     linelists.MustSpecies(names[s]),
+			LowerEnergy: levels[s][rng.IntN(400)],
+			LowerG:      float32(2*rng.IntN(6) + 2),
+		})
+	}
+	st, _ := bl.Build()
+	return st
+}
+
+// BenchmarkFitMillionLines fits three free mass fractions (Sr, Ce, Nd;
+// log-uniform bounds 1e-6–1, free scale) of one invented epoch over
+// 0.4–2.4 µm at R = 1000 from a 1-million-line store, from a start 0.5 dex
+// off, with the optimiser (not the sampler). Goal ≤ 10 s on 2 cores.
+// "full" is the formal integral at the default resolution, "preview" the
+// absorption-only approximation. It reports the evaluations per fit and per
+// second (one evaluation = one synthesis + comparison).
+func BenchmarkFitMillionLines(b *testing.B) {
+	st := millionLineStore(b, 1_000_000)
+	m, err := synth.NewModel(st, 4000, 25000, 0)
+	if err != nil {
+		b.Fatal(err)
+	}
+	truth, _ := opacity.ParseComposition("Sr=0.02,Y=0.005,Zr=0.01,Ba=0.002,La=1e-4,Ce=3e-4,Nd=5e-4,Sm=1e-4,Kr=0.9620")
+	start, _ := opacity.ParseComposition("Sr=0.006,Y=0.005,Zr=0.01,Ba=0.002,La=1e-4,Ce=1e-3,Nd=1.6e-4,Sm=1e-4,Kr=0.9756")
+	ej := synth.Ejecta{Time: 1.5 * spectra.Day, Mass: 0.04 * spectra.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
+		BetaMax: 0.35, DensityIndex: 3, Temperature: 5000}
+	for _, c := range []struct {
+		name    string
+		preview bool
+	}{{"full", false}, {"preview", true}} {
+		b.Run(c.name, func(b *testing.B) {
+			set := synth.Settings{Preview: c.preview, Workers: runtime.GOMAXPROCS(0)}
+			res, err := m.Spectrum(context.Background(), truth, ej, set)
+			if err != nil {
+				b.Fatal(err)
+			}
+			d := 40 * spectra.Megaparsec
+			res.Flux = res.AtDistance(d)
+			var wave []float64
+			for l := 4000.0; l < 24000; l *= 1 + 1/2000.0 {
+				wave = append(wave, l)
+			}
+			flux, _, err := res.Observe(1000, wave)
+			if err != nil {
+				b.Fatal(err)
+			}
+			rng := rand.New(rand.NewPCG(1, 2))
+			sig := spectra.BlackbodyFluxes(nil, wave, ej.Temperature, ej.PhotosphereRadius(), d)
+			for i := range flux {
+				sig[i] /= 30 // S/N 30 on the continuum
+				flux[i] += sig[i] * rng.NormFloat64()
+			}
+			obs, err := spectra.New(wave, flux, sig, spectra.Metadata{Source: "invented"})
+			if err != nil {
+				b.Fatal(err)
+			}
+			p := &Problem{Model: m, Composition: start, Epochs: []Epoch{{Observed: obs, ResolvingPower: 1000, DistanceCm: d, Ejecta: ej}},
+				Free:     []FreeElement{{Z: 38}, {Z: 58}, {Z: 60}},
+				Settings: set}
+			evals := 0
+			var last *FitResult
+			for b.Loop() {
+				r, err := p.Fit(context.Background(), nil)
+				if err != nil {
+					b.Fatal(err)
+				}
+				evals += r.Evaluations
+				last = r
+			}
+			b.ReportMetric(float64(evals)/float64(b.N), "evaluations/fit")
+			b.ReportMetric(float64(evals)/b.Elapsed().Seconds(), "evaluations/s")
+			b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/fit")
+			b.Logf("%s: best %v (truth log X %.3f %.3f %.3f), χ²/N %.3f, %s", c.name, last.Best,
+				math.Log10(0.02), math.Log10(3e-4), math.Log10(5e-4), last.Chi2N, last.Status)
+		})
+	}
+}
