@@ -10,6 +10,7 @@ import (
 	"broadline/linelists"
 	"broadline/opacity"
 	"broadline/opacity/synth"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -60,7 +61,7 @@ func BenchmarkFitMillionLines(b *testing.B) {
 	}
 	truth, _ := opacity.ParseComposition("Sr=0.02,Y=0.005,Zr=0.01,Ba=0.002,La=1e-4,Ce=3e-4,Nd=5e-4,Sm=1e-4,Kr=0.9620")
 	start, _ := opacity.ParseComposition("Sr=0.006,Y=0.005,Zr=0.01,Ba=0.002,La=1e-4,Ce=1e-3,Nd=1.6e-4,Sm=1e-4,Kr=0.9756")
-	ej := synth.Ejecta{Time: 1.5 * spectra.Day, Mass: 0.04 * spectra.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
+	ej := synth.Ejecta{Time: 1.5 * physics.Day, Mass: 0.04 * physics.SolarMass, BetaIn: 0.05, BetaPh: 0.22,
 		BetaMax: 0.35, DensityIndex: 3, Temperature: 5000}
 	for _, c := range []struct {
 		name    string
@@ -72,7 +73,7 @@ func BenchmarkFitMillionLines(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			d := 40 * spectra.Megaparsec
+			d := 40 * physics.Megaparsec
 			res.Flux = res.AtDistance(d)
 			var wave []float64
 			for l := 4000.0; l < 24000; l *= 1 + 1/2000.0 {

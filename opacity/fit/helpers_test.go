@@ -10,6 +10,7 @@ import (
 	"broadline/linelists"
 	"broadline/opacity"
 	"broadline/opacity/synth"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -58,12 +59,12 @@ type injection struct {
 // testSettings are cheap synthesis settings for the tests.
 var testSettings = synth.Settings{Nodes: 8, Options: synth.Options{CoreRays: 8, EnvelopeRays: 12}}
 
-const testDistance = 40 * spectra.Megaparsec
+const testDistance = 40 * physics.Megaparsec
 
 // testEjecta returns invented ejecta at days with photosphere beta and
 // temperature T (not the demo's parameters).
 func testEjecta(days, beta, T float64) synth.Ejecta {
-	return synth.Ejecta{Time: days * spectra.Day, Mass: 0.03 * spectra.SolarMass, BetaIn: 0.05, BetaPh: beta,
+	return synth.Ejecta{Time: days * physics.Day, Mass: 0.03 * physics.SolarMass, BetaIn: 0.05, BetaPh: beta,
 		BetaMax: 0.32, DensityIndex: 3, Temperature: T}
 }
 

@@ -12,6 +12,7 @@ import (
 	"broadline/linelists"
 	"broadline/opacity"
 	"broadline/opacity/synth"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -623,8 +624,8 @@ func (c *compiled) evaluation(ctx context.Context, x []float64) (*Evaluation, er
 	out := &Evaluation{Parameters: slices.Clone(x), Composition: comp.String(), Warnings: slices.Clone(c.warnings)}
 	seen := map[string]bool{}
 	for e, ev := range evs {
-		f := EpochFit{Epoch: e + 1, Days: ev.ej.Time / spectra.Day, PhotosphereVelocityC: ev.ej.BetaPh,
-			PhotosphereVelocityKm: ev.ej.BetaPh * spectra.SpeedOfLightKmS, TemperatureK: ev.ej.Temperature,
+		f := EpochFit{Epoch: e + 1, Days: ev.ej.Time / physics.Day, PhotosphereVelocityC: ev.ej.BetaPh,
+			PhotosphereVelocityKm: ev.ej.BetaPh * physics.SpeedOfLightKmS, TemperatureK: ev.ej.Temperature,
 			FluxScale: 1, Chi2: ev.chi2, N: ev.n, Chi2N: ev.chi2 / float64(ev.n)}
 		if ev.coef != nil {
 			f.FluxScale, f.Correction = ev.coef[0], slices.Clone(ev.coef)
