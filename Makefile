@@ -5,7 +5,7 @@ BIN     := bin/broadline
 # Packages without cgo run under the race detector, the workbench's core,
 # commands and figures too; the GUI and main packages (fyne, cgo) run
 # without it, since a race build recompiles the C parts (~4 min).
-PURE    := ./physics/... ./linelists/... ./spectra/... ./opacity/... ./tools/... ./app/core/... ./app/cli/... ./app/figure/... ./grid/...
+PURE    := ./physics/... ./internal/... ./linelists/... ./spectra/... ./opacity/... ./tools/... ./app/core/... ./app/cli/... ./app/figure/... ./grid/...
 export LANG ?= en_US.UTF-8
 
 .PHONY: all deps build headless run test bench fmt screenshot clean

@@ -276,7 +276,7 @@ func readCache(path string, id sourceID) (*Store, FileReport, error) {
 			return nil, fr, bad("invalid level origin")
 		}
 	}
-	if err := s.validate(); err != nil {
+	if err := s.Check(); err != nil {
 		return nil, fr, bad("%v", err)
 	}
 	fr.Cached = true
@@ -295,14 +295,22 @@ func littleEndian() bool {
 	return *(*byte)(unsafe.Pointer(&x)) == 1
 }
 
-// validate checks the invariants a Store from this package keeps, so that
-// a damaged cache cannot send an index out of range.
-func (s *Store) validate() error {
+// Check returns an error when s breaks an invariant that every Store from
+// this package keeps (lines sorted by wavelength, indices in range, levels
+// grouped by species), so that a damaged cache or a store assembled by hand
+// cannot send an index out of range.
+func (s *Store) Check() error {
 	ns, nl := len(s.SpeciesTable), len(s.Levels.Energy)
-	if len(s.levelStart) != ns+1 || s.levelStart[0] != 0 || int(s.levelStart[ns]) != nl {
+	if n := len(s.Wavelength); len(s.LogGF) != n || len(s.Species) != n || len(s.Lower) != n {
+		return fmt.Errorf("per-line slices differ in length")
+	}
+	if len(s.Levels.Species) != nl {
+		return fmt.Errorf("per-level slices differ in length")
+	}
+	if s.levelStart != nil && (len(s.levelStart) != ns+1 || s.levelStart[0] != 0 || int(s.levelStart[ns]) != nl) {
 		return fmt.Errorf("level index broken")
 	}
-	for i := 0; i < ns; i++ {
+	for i := 0; s.levelStart != nil && i < ns; i++ {
 		lo, hi := s.levelStart[i], s.levelStart[i+1]
 		if hi < lo {
 			return fmt.Errorf("level index not increasing")

@@ -1,7 +1,7 @@
 package cli
 
 import (
-	"broadline/opacity/synth"
+	"broadline/internal/demogen"
 	"bytes"
 	"os"
 	"path/filepath"
@@ -29,16 +29,16 @@ func runCmd(args ...string) (status int, stdout, stderr string) {
 
 // demoData is the built-in demo's scenario (how its invented spectra were
 // made), read from app/demo on disk.
-func demoData(t *testing.T) struct{ Scenario *synth.Scenario } {
+func demoData(t *testing.T) struct{ Scenario *demogen.Scenario } {
 	t.Helper()
 	f, err := os.Open(filepath.Join("..", "demo", "spectra", "scenario.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	sc, err := synth.ReadScenario(f)
+	sc, err := demogen.ReadScenario(f)
 	if err != nil {
 		t.Fatal(err)
 	}
-	return struct{ Scenario *synth.Scenario }{sc}
+	return struct{ Scenario *demogen.Scenario }{sc}
 }

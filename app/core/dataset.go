@@ -12,8 +12,8 @@ import (
 	"path/filepath"
 
 	"broadline/app/demo"
+	"broadline/internal/demogen"
 	"broadline/linelists"
-	"broadline/opacity/synth"
 	"broadline/spectra"
 )
 
@@ -151,12 +151,12 @@ func Demo() (*Bench, error) {
 
 // demoDataset is the demo's scenario as a Dataset (the scenario also
 // records how the invented spectra were made: noise, instrument).
-func demoDataset() (*Dataset, *synth.Scenario, error) {
+func demoDataset() (*Dataset, *demogen.Scenario, error) {
 	f, err := demo.FS.Open(path.Join(demo.Dir, "scenario.json"))
 	if err != nil {
 		return nil, nil, err
 	}
-	sc, err := synth.ReadScenario(f)
+	sc, err := demogen.ReadScenario(f)
 	f.Close()
 	if err != nil {
 		return nil, nil, err

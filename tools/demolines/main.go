@@ -1,5 +1,5 @@
 // Command demolines writes the invented line lists of broadline's built-in
-// demo to app/demo/lines/ (or -out): for each element of linelists.DemoPlan,
+// demo to app/demo/lines/ (or -out): for each element of demogen.Plan,
 // demo_<el>.txt.gz with the lines and demo_<el>_levels.txt.gz with the full
 // invented level set. Every file's header says that it is invented for
 // demonstration and is not atomic data. The output depends only on -seed.
@@ -16,6 +16,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"broadline/internal/demogen"
 	"broadline/linelists"
 )
 
@@ -34,12 +35,12 @@ func run(dir string, seed uint64) error {
 		return err
 	}
 	total, bytesOut := 0, 0
-	for _, el := range linelists.DemoPlan() {
-		s, err := linelists.Demo(el, seed)
+	for _, el := range demogen.Plan() {
+		s, err := demogen.Lines(el, seed)
 		if err != nil {
 			return err
 		}
-		comments := linelists.DemoComments(el, seed)
+		comments := demogen.Comments(el, seed)
 		var species []string
 		for _, sp := range s.SpeciesTable {
 			species = append(species, sp.String())
@@ -52,7 +53,7 @@ func run(dir string, seed uint64) error {
 		var lines bytes.Buffer
 		if err := linelists.Write(&lines, s, linelists.WriteOptions{
 			Comments: comments, Meta: meta,
-			Note: func(i int) string { return linelists.RealNote(s, i) },
+			Note: func(i int) string { return demogen.RealNote(s, i) },
 		}); err != nil {
 			return err
 		}

@@ -29,6 +29,7 @@ import (
 	"slices"
 	"strconv"
 
+	"broadline/internal/demogen"
 	"broadline/linelists"
 	"broadline/opacity/synth"
 	"broadline/spectra"
@@ -36,7 +37,7 @@ import (
 
 // demoScenario is the recorded truth of the demo. The line files are named
 // relative to the scenario file (app/demo/spectra/).
-func demoScenario() *synth.Scenario {
+func demoScenario() *demogen.Scenario {
 	els := []string{"ca", "sr", "y", "zr", "ce", "nd", "sm", "eu"}
 	var lines, levels []string
 	for _, e := range els {
@@ -45,7 +46,7 @@ func demoScenario() *synth.Scenario {
 			levels = append(levels, "../lines/demo_"+e+"_levels.txt.gz")
 		}
 	}
-	return &synth.Scenario{
+	return &demogen.Scenario{
 		Label: "INVENTED DEMONSTRATION DATA: a fictional event, an invented distance, invented epochs, " +
 			"invented line lists and an invented spectrograph. Not an observation; do not use for science. " +
 			"The composition is that of an invented lanthanide-poor (blue) component: Sr 3 %, Y and Zr below it, " +
@@ -66,7 +67,7 @@ func demoScenario() *synth.Scenario {
 		DensityIndex:    3,
 		ModelFromUm:     0.36,
 		ModelToUm:       2.5,
-		Instrument: synth.Instrument{
+		Instrument: demogen.Instrument{
 			Description: "invented ground-based optical/near-infrared spectrograph, R = 500, 2 pixels per resolution element; " +
 				"the opaque water bands removed, the other telluric bands flagged (band edges: common practice)",
 			ResolvingPower:      500,
@@ -78,7 +79,7 @@ func demoScenario() *synth.Scenario {
 			NoiseFactor:         3,
 		},
 		Seed: 20261202,
-		Epochs: []synth.Epoch{
+		Epochs: []demogen.Epoch{
 			{File: "demo_epoch1.txt", Days: 1.5, PhotosphereVelocity: 0.24, Temperature: 5000, SNR: 40},
 			{File: "demo_epoch2.txt", Days: 3.5, PhotosphereVelocity: 0.17, Temperature: 3700, SNR: 25},
 			{File: "demo_epoch3.txt", Days: 7.5, PhotosphereVelocity: 0.11, Temperature: 2700, SNR: 12},
@@ -128,26 +129,26 @@ func run(dir string) error {
 
 // LoadStore reads the scenario's line lists and levels files, named
 // relative to dir.
-func LoadStore(dir string, sc *synth.Scenario) (*linelists.Store, linelists.Report, error) {
+func LoadStore(dir string, sc *demogen.Scenario) (*linelists.Store, linelists.Report, error) {
 	// io/fs paths cannot climb with "..", so open the parent and name the
 	// scenario's directory inside it.
 	return sc.LoadStore(os.DirFS(filepath.Join(dir, "..")), filepath.Base(filepath.Clean(dir)))
 }
 
 // Noiseless is sc.Truth with all cores.
-func Noiseless(ctx context.Context, sc *synth.Scenario, m *synth.Model, i int, betaPh float64) (wave, flux, cont []float64, err error) {
+func Noiseless(ctx context.Context, sc *demogen.Scenario, m *synth.Model, i int, betaPh float64) (wave, flux, cont []float64, err error) {
 	return sc.Truth(ctx, m, i, betaPh, runtime.GOMAXPROCS(0))
 }
 
 // NewModel returns the model over the scenario's range.
-func NewModel(sc *synth.Scenario, st *linelists.Store) (*synth.Model, error) {
+func NewModel(sc *demogen.Scenario, st *linelists.Store) (*synth.Model, error) {
 	return sc.NewModel(st)
 }
 
 // Observe returns epoch i as the invented instrument records it: the pixels
 // left after the removed ranges, flux with noise, its uncertainty, and the
 // mask (1 inside flagged telluric bands).
-func Observe(ctx context.Context, sc *synth.Scenario, st *linelists.Store, i int) (*spectra.Spectrum, error) {
+func Observe(ctx context.Context, sc *demogen.Scenario, st *linelists.Store, i int) (*spectra.Spectrum, error) {
 	m, err := NewModel(sc, st)
 	if err != nil {
 		return nil, err
@@ -196,7 +197,7 @@ func Observe(ctx context.Context, sc *synth.Scenario, st *linelists.Store, i int
 
 // Format writes s in the plain-text format spectra.ReadText reads, with a
 // header that says the data are invented.
-func Format(sc *synth.Scenario, i int, s *spectra.Spectrum) []byte {
+func Format(sc *demogen.Scenario, i int, s *spectra.Spectrum) []byte {
 	var b bytes.Buffer
 	e := sc.Epochs[i]
 	fmt.Fprintf(&b, "# INVENTED DEMONSTRATION DATA - NOT AN OBSERVATION.\n")

@@ -8,20 +8,20 @@ import (
 	"path/filepath"
 	"testing"
 
-	"broadline/opacity/synth"
+	"broadline/internal/demogen"
 	"broadline/spectra"
 )
 
 const demoDir = "../../app/demo/spectra"
 
-func loadDemo(t *testing.T) *synth.Scenario {
+func loadDemo(t *testing.T) *demogen.Scenario {
 	t.Helper()
 	f, err := os.Open(filepath.Join(demoDir, "scenario.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	sc, err := synth.ReadScenario(f)
+	sc, err := demogen.ReadScenario(f)
 	if err != nil {
 		t.Fatal(err)
 	}

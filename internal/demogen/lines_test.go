@@ -1,6 +1,7 @@
-package linelists
+package demogen
 
 import (
+	"broadline/linelists"
 	"bytes"
 	"cmp"
 	"compress/gzip"
@@ -15,7 +16,7 @@ import (
 	"gonum.org/v1/gonum/stat"
 )
 
-const demoDir = "../app/demo/lines"
+const demoDir = "../../app/demo/lines"
 
 // TestDemoFilesCurrent checks that the committed demo files are what the
 // generator makes now (run "go run ./tools/demolines" after changing it),
@@ -25,9 +26,9 @@ func TestDemoFilesCurrent(t *testing.T) {
 		t.Skip("reads the demo files")
 	}
 	count := map[string]int{}
-	var zr, nd *Store
-	for _, el := range DemoPlan() {
-		s, err := Demo(el, 1)
+	var zr, nd *linelists.Store
+	for _, el := range Plan() {
+		s, err := Lines(el, 1)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -39,7 +40,7 @@ func TestDemoFilesCurrent(t *testing.T) {
 			nd = s
 		}
 		var want bytes.Buffer
-		if err := Write(&want, s, WriteOptions{Comments: DemoComments(el, 1), Note: func(i int) string { return RealNote(s, i) }}); err != nil {
+		if err := linelists.Write(&want, s, linelists.WriteOptions{Comments: Comments(el, 1), Note: func(i int) string { return RealNote(s, i) }}); err != nil {
 			t.Fatal(err)
 		}
 		path := filepath.Join(demoDir, el.File+".txt.gz")
@@ -59,20 +60,22 @@ func TestDemoFilesCurrent(t *testing.T) {
 		if s.Len() > 20000 {
 			continue // reading back the big ones adds nothing but time
 		}
-		b := NewBuilder()
-		if _, err := b.Read(bytes.NewReader(got), ReadOptions{Name: path}); err != nil {
+		b := linelists.NewBuilder()
+		if _, err := b.Read(bytes.NewReader(got), linelists.ReadOptions{Name: path}); err != nil {
 			t.Fatal(err)
 		}
-		if _, err := b.ReadLevels(bytes.NewReader(lv), LevelsOptions{Name: el.File + "_levels"}); err != nil {
+		if _, err := b.ReadLevels(bytes.NewReader(lv), linelists.LevelsOptions{Name: el.File + "_levels"}); err != nil {
 			t.Fatal(err)
 		}
 		r, rep := b.Build()
-		checkStore(t, r)
+		if err := r.Check(); err != nil {
+			t.Fatalf("%s read back: %v", el.File, err)
+		}
 		if r.Len() != s.Len() || len(r.Levels.Energy) != len(s.Levels.Energy) || len(rep.Warnings) != 0 {
 			t.Errorf("%s read back: %d lines %d levels (%v), generated %d and %d", el.File, r.Len(), len(r.Levels.Energy), rep.Warnings, s.Len(), len(s.Levels.Energy))
 		}
 		for _, sp := range r.SpeciesTable {
-			if r.LevelSourceOf(sp) != FileLevels {
+			if r.LevelSourceOf(sp) != linelists.FileLevels {
 				t.Errorf("%v: levels not from the levels file", sp)
 			}
 		}
@@ -113,19 +116,19 @@ func dataRows(b []byte) string {
 // wavelength is hc/ΔE of its levels with |ΔJ| ≤ 1, and log gf minus the
 // documented log10(5000 Å/λ) trend has the plan's mean and σ.
 func TestDemoStatistics(t *testing.T) {
-	el := DemoPlan()[5] // Nd
+	el := Plan()[5] // Nd
 	if el.Symbol != "Nd" {
 		t.Fatalf("plan order changed: %v", el.Symbol)
 	}
-	a, err := Demo(el, 7)
+	a, err := Lines(el, 7)
 	if err != nil {
 		t.Fatal(err)
 	}
 	// Determinism on the smallest lanthanide, to save time.
-	eu := DemoPlan()[7]
-	e1, err1 := Demo(eu, 7)
-	e2, err2 := Demo(eu, 7)
-	e3, err3 := Demo(eu, 8)
+	eu := Plan()[7]
+	e1, err1 := Lines(eu, 7)
+	e2, err2 := Lines(eu, 7)
+	e3, err3 := Lines(eu, 8)
 	if err := cmp.Or(err1, err2, err3); err != nil {
 		t.Fatal(err)
 	}
@@ -165,7 +168,7 @@ func TestDemoStatistics(t *testing.T) {
 			t.Errorf("line %d: no upper level at %.4f eV with |ΔJ| ≤ 1", i, eUp)
 		}
 	}
-	if u, complete := a.PartitionFunction(MustSpecies("Nd II"), 5000); !complete || u < 8 {
+	if u, complete := a.PartitionFunction(linelists.MustSpecies("Nd II"), 5000); !complete || u < 8 {
 		t.Errorf("Nd II demo U = %v complete %v", u, complete)
 	}
 }
@@ -173,7 +176,7 @@ func TestDemoStatistics(t *testing.T) {
 // TestDemoRealLines checks that the real lines carry the REFERENCES.md
 // values and are marked where they are written.
 func TestDemoRealLines(t *testing.T) {
-	for _, rl := range RealDemoLines() {
+	for _, rl := range RealLines() {
 		// λ = 1/(E_up − E_low) in vacuum, from the REFERENCES.md levels;
 		// wavelengths there are given to 0.01 Å and levels to 0.01 cm⁻¹
 		// (0.012 Å at 1.1 µm), hence 0.02 Å.
@@ -181,12 +184,12 @@ func TestDemoRealLines(t *testing.T) {
 			t.Errorf("%s %v: levels give %.3f Å", rl.Species, rl.Wavelength, w)
 		}
 	}
-	s, err := Demo(DemoPlan()[0], 1) // Ca
+	s, err := Lines(Plan()[0], 1) // Ca
 	if err != nil {
 		t.Fatal(err)
 	}
 	var buf bytes.Buffer
-	Write(&buf, s, WriteOptions{Note: func(i int) string { return RealNote(s, i) }})
+	linelists.Write(&buf, s, linelists.WriteOptions{Note: func(i int) string { return RealNote(s, i) }})
 	if n := strings.Count(buf.String(), "# real line"); n != 5 {
 		t.Errorf("%d real-line marks in the Ca file, want 5", n)
 	}
@@ -199,7 +202,7 @@ func TestDemoRealLines(t *testing.T) {
 // from the lowest levels of Zr (lower level below 0.5 eV, log gf > −1) lie in
 // the blue, while Nd has such lines well into the near-infrared. It runs
 // inside TestDemoFilesCurrent, which generates every element anyway.
-func checkComplexity(t *testing.T, count map[string]int, zr, nd *Store) {
+func checkComplexity(t *testing.T, count map[string]int, zr, nd *linelists.Store) {
 	t.Helper()
 	if zr == nil || nd == nil {
 		t.Fatal("plan lacks Zr or Nd")
@@ -212,7 +215,7 @@ func checkComplexity(t *testing.T, count map[string]int, zr, nd *Store) {
 		}
 	}
 	// Longest wavelength of a strong line from a level below 0.5 eV.
-	reddest := func(s *Store) float64 {
+	reddest := func(s *linelists.Store) float64 {
 		w := 0.0
 		for i := range s.Len() {
 			if s.Levels.Energy[s.Lower[i]] < 0.5 && s.LogGF[i] > -1 {

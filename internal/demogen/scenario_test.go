@@ -1,4 +1,4 @@
-package synth
+package demogen
 
 import (
 	"bytes"

@@ -1,4 +1,4 @@
-package linelists
+package demogen
 
 import (
 	"cmp"
@@ -8,6 +8,7 @@ import (
 	"slices"
 	"strings"
 
+	"broadline/linelists"
 	"broadline/physics"
 )
 
@@ -28,19 +29,19 @@ import (
 // at a size that fits the program (~3 MB compressed): a real list of a
 // lanthanide ion is 10–100 times longer still.
 
-// DemoElement is one element of the demo line lists and what to invent for
+// Element is one element of the demo line lists and what to invent for
 // it.
-type DemoElement struct {
+type Element struct {
 	Symbol string
 	// File is the base name of the line-list file (".txt.gz" is added;
 	// the levels file adds "_levels.txt.gz").
 	File   string
-	Stages []DemoStage
+	Stages []Stage
 }
 
-// DemoStage sets the size and shape of the invented level and line sets of
+// Stage sets the size and shape of the invented level and line sets of
 // one ion.
-type DemoStage struct {
+type Stage struct {
 	Charge uint8
 	Levels int // invented levels, ground level included
 	Lines  int // invented lines (fewer when the levels allow no more)
@@ -65,7 +66,7 @@ type DemoStage struct {
 	LogGFMean, LogGFSigma float64
 }
 
-// DemoPlan returns the elements of the demo line lists. The file names are
+// Plan returns the elements of the demo line lists. The file names are
 // stable: other parts of the program read them.
 //
 // The sizes, gaps and gf distributions are invented; their pattern follows
@@ -83,19 +84,19 @@ type DemoStage struct {
 //     weak lines), lower levels weighted exp(−E/2 eV).
 //   - Eu (half-filled 4f shell): fewer levels and lines than its
 //     neighbours, and its singly ionised lines from the ground need ~3 eV.
-func DemoPlan() []DemoElement {
+func Plan() []Element {
 	const lgLight, sdLight = -1.8, 1.0 // log gf of the d-shell ions
 	const lgLan, sdLan = -3.1, 1.3     // log gf of the f-shell ions
-	el := func(sym string, st ...DemoStage) DemoElement {
-		return DemoElement{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: st}
+	el := func(sym string, st ...Stage) Element {
+		return Element{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: st}
 	}
-	d := func(charge uint8, levels, lines int, gap, cross float64) DemoStage {
-		return DemoStage{charge, levels, lines, gap, cross, 2.2, 4, 0, lgLight, sdLight}
+	d := func(charge uint8, levels, lines int, gap, cross float64) Stage {
+		return Stage{charge, levels, lines, gap, cross, 2.2, 4, 0, lgLight, sdLight}
 	}
-	f := func(charge uint8, levels, lines int, gap, cross float64) DemoStage {
-		return DemoStage{charge, levels, lines, gap, cross, 10, 8, 2, lgLan, sdLan}
+	f := func(charge uint8, levels, lines int, gap, cross float64) Stage {
+		return Stage{charge, levels, lines, gap, cross, 10, 8, 2, lgLan, sdLan}
 	}
-	return []DemoElement{
+	return []Element{
 		{Symbol: "Ca", File: "demo_ca"}, // the real Ca II lines only
 		el("Sr", d(0, 50, 150, 2.2, 1.8), d(1, 40, 60, 5.5, 6.6), d(2, 30, 40, 21, 21.5)),
 		el("Y", d(0, 80, 150, 1.3, 1.3), d(1, 90, 250, 0, 2.9), d(2, 30, 40, 0.9, 5.4)),
@@ -140,8 +141,8 @@ var realLines = []RealLine{
 	{"Sr II", 10917.86, -0.64, 14555.90, 4, 23715.19, 2, "real line: Sr II near-IR 10918 (REFERENCES.md; log gf from memory)"},
 }
 
-// RealDemoLines returns the real lines included in the demo lists.
-func RealDemoLines() []RealLine { return slices.Clone(realLines) }
+// RealLines returns the real lines included in the demo lists.
+func RealLines() []RealLine { return slices.Clone(realLines) }
 
 // Demo wavelength window, vacuum Å.
 const (
@@ -156,15 +157,15 @@ const (
 // Demo generates the invented lines and levels of one element of the demo
 // (plus its real lines) with a seeded random source: the same seed gives
 // the same store. Every species gets a full level set (LevelSource
-// FileLevels), so its partition function is that of the invented atom.
-func Demo(el DemoElement, seed uint64) (*Store, error) {
-	e, err := ElementBySymbol(el.Symbol)
+// linelists.FileLevels), so its partition function is that of the invented atom.
+func Lines(el Element, seed uint64) (*linelists.Store, error) {
+	e, err := linelists.ElementBySymbol(el.Symbol)
 	if err != nil {
 		return nil, err
 	}
-	b := NewBuilder()
+	b := linelists.NewBuilder()
 	for _, st := range el.Stages {
-		sp := Species{Z: uint8(e.Z), Charge: st.Charge}
+		sp := linelists.Species{Z: uint8(e.Z), Charge: st.Charge}
 		rng := rand.New(rand.NewPCG(seed, uint64(e.Z)<<8|uint64(st.Charge)))
 		ie := e.Ionization[st.Charge]
 		if ie == 0 {
@@ -179,14 +180,14 @@ func Demo(el DemoElement, seed uint64) (*Store, error) {
 		}
 	}
 	for _, rl := range realLines {
-		sp := MustSpecies(rl.Species)
+		sp := linelists.MustSpecies(rl.Species)
 		if int(sp.Z) != e.Z {
 			continue
 		}
 		b.AddLevel(sp, 0, float32(mustGround(sp)))
 		b.AddLevel(sp, rl.LowerCm*physics.InvCmToEV, rl.LowerG)
 		b.AddLevel(sp, rl.UpperCm*physics.InvCmToEV, rl.UpperG)
-		b.Add(Line{Wavelength: rl.Wavelength, LogGF: rl.LogGF, Species: sp, LowerEnergy: rl.LowerCm * physics.InvCmToEV, LowerG: rl.LowerG})
+		b.Add(linelists.Line{Wavelength: rl.Wavelength, LogGF: rl.LogGF, Species: sp, LowerEnergy: rl.LowerCm * physics.InvCmToEV, LowerG: rl.LowerG})
 	}
 	s, rep := b.Build()
 	if rep.Duplicates > 0 {
@@ -195,8 +196,8 @@ func Demo(el DemoElement, seed uint64) (*Store, error) {
 	return s, nil
 }
 
-func mustGround(sp Species) float64 {
-	g, known := GroundWeight(sp)
+func mustGround(sp linelists.Species) float64 {
+	g, known := linelists.GroundWeight(sp)
 	if !known {
 		panic("linelists: demo: unknown ground weight of " + sp.String())
 	}
@@ -205,10 +206,10 @@ func mustGround(sp Species) float64 {
 
 // RealNote returns the marking comment of line i of a demo store when it
 // is one of the real lines, or "".
-func RealNote(s *Store, i int) string {
+func RealNote(s *linelists.Store, i int) string {
 	sp := s.SpeciesTable[s.Species[i]]
 	for _, rl := range realLines {
-		if math.Abs(rl.Wavelength-s.Wavelength[i]) < 1e-6 && MustSpecies(rl.Species) == sp {
+		if math.Abs(rl.Wavelength-s.Wavelength[i]) < 1e-6 && linelists.MustSpecies(rl.Species) == sp {
 			return rl.Note
 		}
 	}
@@ -229,7 +230,7 @@ type demoLevel struct {
 // above the start (at most 85 % of the ionisation energy, at least 1 eV). J is whole
 // or half-whole as the number of electrons is even or odd. Energies are
 // rounded to 1e-4 eV.
-func demoLevels(rng *rand.Rand, sp Species, st DemoStage, ie float64) []demoLevel {
+func demoLevels(rng *rand.Rand, sp linelists.Species, st Stage, ie float64) []demoLevel {
 	out := []demoLevel{{0, float32(mustGround(sp)), false}}
 	half := (int(sp.Z)-int(sp.Charge))%2 == 1
 	for len(out) < st.Levels {
@@ -264,7 +265,7 @@ func demoLevels(rng *rand.Rand, sp Species, st DemoStage, ie float64) []demoLeve
 // among the levels of the other parity that put the line in 3500–25000 Å,
 // and log gf from a normal distribution (LogGFMean, LogGFSigma) plus
 // log10(5000 Å/λ), clipped to −7…+0.9.
-func demoLines(rng *rand.Rand, sp Species, st DemoStage, levels []demoLevel) []Line {
+func demoLines(rng *rand.Rand, sp linelists.Species, st Stage, levels []demoLevel) []linelists.Line {
 	cum := make([]float64, len(levels))
 	sum := 0.0
 	for i, l := range levels {
@@ -294,7 +295,7 @@ func demoLines(rng *rand.Rand, sp Species, st DemoStage, levels []demoLevel) []L
 		eUp float64
 	}
 	used := map[pair]bool{}
-	out := make([]Line, 0, st.Lines)
+	out := make([]linelists.Line, 0, st.Lines)
 	for tries := 0; len(out) < st.Lines && tries < 50*st.Lines; tries++ {
 		lo, _ := slices.BinarySearch(cum, rng.Float64()*sum)
 		lo = min(lo, len(levels)-1)
@@ -320,7 +321,7 @@ func demoLines(rng *rand.Rand, sp Species, st DemoStage, levels []demoLevel) []L
 		// common practice): lines far in the infrared are weaker.
 		lgf := st.LogGFMean + st.LogGFSigma*rng.NormFloat64() + math.Log10(demoGFWavelength/w)
 		lgf = math.Round(math.Max(-7, math.Min(0.9, lgf))*1e3) / 1e3
-		out = append(out, Line{
+		out = append(out, linelists.Line{
 			Wavelength: math.Round(w*1e4) / 1e4, LogGF: lgf, Species: sp,
 			LowerEnergy: levels[lo].e, LowerG: gl,
 			HasUpper: true, UpperEnergy: levels[up].e, UpperG: gu,
@@ -329,11 +330,11 @@ func demoLines(rng *rand.Rand, sp Species, st DemoStage, levels []demoLevel) []L
 	return out
 }
 
-// DemoComments is the header every demo file starts with.
-func DemoComments(el DemoElement, seed uint64) []string {
+// Comments is the header every demo file starts with.
+func Comments(el Element, seed uint64) []string {
 	return []string{
 		"INVENTED FOR DEMONSTRATION - NOT ATOMIC DATA.",
-		"This file was made up by broadline's seeded demo generator (linelists.Demo,",
+		"This file was made up by broadline's seeded demo generator (tools/demolines,",
 		fmt.Sprintf("seed %d, element %s): random level energies, weights and gf values shaped", seed, el.Symbol),
 		"after the qualitative statistics of theoretical line lists (few lines for the",
 		"open-d-shell elements, very many weak ones for the lanthanides). It is not",

@@ -1,4 +1,4 @@
-package synth
+package demogen
 
 import (
 	"context"
@@ -11,6 +11,7 @@ import (
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/opacity/synth"
 	"broadline/physics"
 	"broadline/spectra"
 )
@@ -139,9 +140,9 @@ func (s *Scenario) Composition() opacity.Composition {
 }
 
 // Ejecta returns the ejecta of epoch i.
-func (s *Scenario) Ejecta(i int) Ejecta {
+func (s *Scenario) Ejecta(i int) synth.Ejecta {
 	e := s.Epochs[i]
-	return Ejecta{
+	return synth.Ejecta{
 		Time: e.Days * physics.Day, Mass: s.EjectaMassSolar * physics.SolarMass,
 		BetaIn: s.InnerVelocity, BetaPh: e.PhotosphereVelocity, BetaMax: s.OuterVelocity,
 		DensityIndex: s.DensityIndex, Temperature: e.Temperature, Diluted: s.Diluted,
@@ -197,8 +198,8 @@ func (s *Scenario) LoadStore(fsys fs.FS, dir string) (*linelists.Store, linelist
 }
 
 // NewModel returns a model of st over the scenario's wavelength range.
-func (s *Scenario) NewModel(st *linelists.Store) (*Model, error) {
-	return NewModel(st, s.ModelFromUm*1e4, s.ModelToUm*1e4, 0)
+func (s *Scenario) NewModel(st *linelists.Store) (*synth.Model, error) {
+	return synth.NewModel(st, s.ModelFromUm*1e4, s.ModelToUm*1e4, 0)
 }
 
 // Truth returns epoch i's noiseless spectrum as the scenario's instrument
@@ -206,12 +207,12 @@ func (s *Scenario) NewModel(st *linelists.Store) (*Model, error) {
 // model flux at the scenario's distance (erg s⁻¹ cm⁻² Å⁻¹) smoothed to the
 // instrument's resolving power, and the bare blackbody continuum. A betaPh > 0
 // replaces the recorded photosphere velocity (for recovery tests and sweeps).
-func (s *Scenario) Truth(ctx context.Context, m *Model, i int, betaPh float64, workers int) (wave, flux, cont []float64, err error) {
+func (s *Scenario) Truth(ctx context.Context, m *synth.Model, i int, betaPh float64, workers int) (wave, flux, cont []float64, err error) {
 	ej := s.Ejecta(i)
 	if betaPh > 0 {
 		ej.BetaPh = betaPh
 	}
-	res, err := m.Spectrum(ctx, s.Composition(), ej, Settings{Workers: workers})
+	res, err := m.Spectrum(ctx, s.Composition(), ej, synth.Settings{Workers: workers})
 	if err != nil {
 		return nil, nil, nil, err
 	}
