@@ -5,6 +5,9 @@ BIN     := bin/broadline
 # Packages without cgo run under the race detector, the workbench's core,
 # commands and figures too; the GUI and main packages (fyne, cgo) run
 # without it, since a race build recompiles the C parts (~4 min).
+# HEAVY are the injection–recovery fits, skipped under the race detector
+# (which slows the synthesis some twentyfold) and run once without it.
+HEAVY   := TestFitRecovers|TestInjectionRecovery|TestJointBeatsSingle|TestSampleDeterministic|TestFitCommand$$
 PURE    := ./physics/... ./internal/... ./linelists/... ./spectra/... ./opacity/... ./tools/... ./app/core/... ./app/cli/... ./app/figure/... ./grid/...
 export LANG ?= en_US.UTF-8
 
@@ -30,6 +33,7 @@ test: deps
 	@test -z "$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go'))" || { echo "gofmt needed on:"; gofmt -l .; exit 1; }
 	$(GO) vet ./...
 	$(GO) test -race -timeout 15m $(PURE)
+	$(GO) test -timeout 10m -run '$(HEAVY)' ./opacity/fit/ ./app/core/ ./app/cli/
 	$(GO) test -timeout 10m ./app ./app/gui/...
 
 bench: deps

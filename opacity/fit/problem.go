@@ -80,6 +80,10 @@ type Epoch struct {
 	// Name labels the epoch in messages (e.g. the file name); empty means
 	// "epoch N".
 	Name string
+	// Number is the epoch's number in parameter names, reports and
+	// messages, e.g. its place in the user's dataset (0: its place in
+	// Problem.Epochs, from 1).
+	Number int
 	// Observed is the calibrated spectrum, with uncertainties; masked
 	// samples are left out.
 	Observed *spectra.Spectrum
@@ -318,7 +322,7 @@ func (p *Problem) compile() (*compiled, error) {
 	for e, ep := range p.Epochs {
 		name := ep.Name
 		if name == "" {
-			name = fmt.Sprintf("epoch %d", e+1)
+			name = fmt.Sprintf("epoch %d", p.Epochs[e].number(e))
 		}
 		ed, warn, err := p.prepareEpoch(c, e, ep, mlo, mhi)
 		if err != nil {
@@ -406,8 +410,9 @@ func (p *Problem) prepareEpoch(c *compiled, e int, ep Epoch, mlo, mhi float64) (
 				b.Lower, b.Upper, ep.Ejecta.BetaIn, ep.Ejecta.BetaMax)
 		}
 		ed.vIdx = len(c.params)
-		c.params = append(c.params, Parameter{Name: fmt.Sprintf("v_ph_c_%d", e+1), Label: fmt.Sprintf("v_ph,%d / c", e+1),
-			Kind: KindVelocity, Epoch: e + 1, Lower: b.Lower, Upper: b.Upper})
+		n := ep.number(e)
+		c.params = append(c.params, Parameter{Name: fmt.Sprintf("v_ph_c_%d", n), Label: fmt.Sprintf("v_ph,%d / c", n),
+			Kind: KindVelocity, Epoch: n, Lower: b.Lower, Upper: b.Upper})
 		c.start = append(c.start, inside(ep.Ejecta.BetaPh, b))
 	}
 	if p.FitTemperature {
@@ -419,8 +424,9 @@ func (p *Problem) prepareEpoch(c *compiled, e int, ep Epoch, mlo, mhi float64) (
 			return ed, "", fmt.Errorf("temperature bounds %g–%g K must satisfy 0 < lower < upper", b.Lower, b.Upper)
 		}
 		ed.tIdx = len(c.params)
-		c.params = append(c.params, Parameter{Name: fmt.Sprintf("T_ph_K_%d", e+1), Label: fmt.Sprintf("T_ph,%d / K", e+1),
-			Kind: KindTemperature, Epoch: e + 1, Lower: b.Lower, Upper: b.Upper})
+		n := ep.number(e)
+		c.params = append(c.params, Parameter{Name: fmt.Sprintf("T_ph_K_%d", n), Label: fmt.Sprintf("T_ph,%d / K", n),
+			Kind: KindTemperature, Epoch: n, Lower: b.Lower, Upper: b.Upper})
 		c.start = append(c.start, inside(ep.Ejecta.Temperature, b))
 	}
 	return ed, warn, nil
@@ -510,12 +516,12 @@ func (c *compiled) evaluate(ctx context.Context, x []float64, keep bool, workers
 		}
 		res, err := c.p.Model.Spectrum(ctx, comp, ej, set)
 		if err != nil {
-			return nil, fmt.Errorf("fit: epoch %d: %w", e+1, err)
+			return nil, fmt.Errorf("fit: epoch %d: %w", c.p.Epochs[e].number(e), err)
 		}
 		res.Flux = res.AtDistance(ed.d)
 		flux, _, err := res.Observe(ed.R, ed.grid)
 		if err != nil {
-			return nil, fmt.Errorf("fit: epoch %d: %w", e+1, err)
+			return nil, fmt.Errorf("fit: epoch %d: %w", c.p.Epochs[e].number(e), err)
 		}
 		m := make([]float64, len(ed.use))
 		for k, i := range ed.use {
@@ -533,7 +539,7 @@ func (c *compiled) evaluate(ctx context.Context, x []float64, keep bool, workers
 				ev.chi2 = chi2Fixed(ed.y, ed.sigma, make([]float64, len(m)))
 				ev.coef = make([]float64, c.nLinear)
 			case err != nil:
-				return nil, fmt.Errorf("fit: epoch %d: %w", e+1, err)
+				return nil, fmt.Errorf("fit: epoch %d: %w", c.p.Epochs[e].number(e), err)
 			default:
 				ev.chi2, ev.coef, ev.logDet = ls.chi2, ls.coef, ls.logDet
 			}
@@ -624,7 +630,7 @@ func (c *compiled) evaluation(ctx context.Context, x []float64) (*Evaluation, er
 	out := &Evaluation{Parameters: slices.Clone(x), Composition: comp.String(), Warnings: slices.Clone(c.warnings)}
 	seen := map[string]bool{}
 	for e, ev := range evs {
-		f := EpochFit{Epoch: e + 1, Days: ev.ej.Time / physics.Day, PhotosphereVelocityC: ev.ej.BetaPh,
+		f := EpochFit{Epoch: c.p.Epochs[e].number(e), Days: ev.ej.Time / physics.Day, PhotosphereVelocityC: ev.ej.BetaPh,
 			PhotosphereVelocityKm: ev.ej.BetaPh * physics.SpeedOfLightKmS, TemperatureK: ev.ej.Temperature,
 			FluxScale: 1, Chi2: ev.chi2, N: ev.n, Chi2N: ev.chi2 / float64(ev.n)}
 		if ev.coef != nil {
@@ -680,4 +686,13 @@ func outerSafe(ph, vmax float64, nodes int) float64 {
 		ph = math.Nextafter(ph, 0)
 	}
 	return ph
+}
+
+// number is the epoch's number for names and messages; e is its index in
+// Problem.Epochs.
+func (ep *Epoch) number(e int) int {
+	if ep.Number > 0 {
+		return ep.Number
+	}
+	return e + 1
 }
