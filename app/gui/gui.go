@@ -83,7 +83,10 @@ type workbench struct {
 	// 0 for none; knockSel chooses it.
 	without  int
 	knockSel *widget.Select
-	unitSel  *widget.Select // wavelength unit of the figure and the table
+	// syncing is true while syncControls sets the controls from the
+	// session, so that their callbacks change nothing.
+	syncing bool
+	unitSel *widget.Select // wavelength unit of the figure and the table
 	// lastKnock is the knock-out overlay of the last computation (nil
 	// when none was asked for); tests read it.
 	lastKnock *core.Overlay
@@ -123,14 +126,32 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.velLabel = widget.NewLabel("")
 	wb.velocity = widget.NewSlider(core.MinVelocity, core.MaxVelocity(sc))
 	wb.velocity.Step = 0.001 // 300 km/s
-	wb.velocity.OnChanged = func(v float64) { wb.sess.PhotosphereVelocity = v; wb.showValues() }
-	wb.velocity.OnChangeEnded = func(float64) { wb.recompute() }
+	wb.velocity.OnChanged = func(v float64) {
+		if !wb.syncing {
+			wb.sess.PhotosphereVelocity = v
+			wb.showValues()
+		}
+	}
+	wb.velocity.OnChangeEnded = func(float64) {
+		if !wb.syncing {
+			wb.recompute()
+		}
+	}
 
 	wb.tempLabel = widget.NewLabel("")
 	wb.temp = widget.NewSlider(core.MinTemperature, core.MaxTemperature)
 	wb.temp.Step = 50
-	wb.temp.OnChanged = func(v float64) { wb.sess.Temperature = v; wb.showValues() }
-	wb.temp.OnChangeEnded = func(float64) { wb.recompute() }
+	wb.temp.OnChanged = func(v float64) {
+		if !wb.syncing {
+			wb.sess.Temperature = v
+			wb.showValues()
+		}
+	}
+	wb.temp.OnChangeEnded = func(float64) {
+		if !wb.syncing {
+			wb.recompute()
+		}
+	}
 	sweep := widget.NewButton("Sweep velocity…", func() { wb.sweepDialog(core.Velocity) })
 	sweepT := widget.NewButton("Sweep temperature…", func() { wb.sweepDialog(core.Temperature) })
 
@@ -139,6 +160,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.fractions.SetMinRowsVisible(3)
 	apply := widget.NewButton("Apply composition", func() { wb.applyComposition() })
 	wb.applyBtn = apply
+	fitBtn := widget.NewButton("Fit the composition…", func() { wb.fitDialog() })
 	wb.preview = widget.NewCheck("Absorption-only preview (fast, approximate)", func(on bool) {
 		if on != wb.sess.Preview {
 			wb.sess.Preview = on
@@ -190,7 +212,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 		widget.NewLabelWithStyle("Epoch", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.epoch,
 		widget.NewLabelWithStyle("Photosphere velocity", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.velocity, wb.velLabel, sweep,
 		widget.NewLabelWithStyle("Photosphere temperature", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.temp, wb.tempLabel, sweepT,
-		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions, apply,
+		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions, apply, fitBtn,
 		wb.preview, reset,
 		widget.NewSeparator(),
 		widget.NewLabelWithStyle("Candidates", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), keep, candScroll,
@@ -283,8 +305,13 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	return wb
 }
 
-// syncControls sets every control from the session.
+// syncControls sets every control from the session. The sliders' knobs
+// move to the nearest step, but the session keeps its exact values (a
+// fitted 0.2387 c stays 0.2387 c) and nothing is recomputed: the caller
+// decides that.
 func (wb *workbench) syncControls() {
+	wb.syncing = true
+	defer func() { wb.syncing = false }()
 	wb.epoch.SetSelectedIndex(wb.sess.Epoch)
 	wb.velocity.SetValue(wb.sess.PhotosphereVelocity)
 	wb.temp.SetValue(wb.sess.Temperature)

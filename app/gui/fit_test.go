@@ -1,0 +1,127 @@
+package gui
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"fyne.io/fyne/v2/test"
+
+	"broadline/app/core"
+)
+
+// cheapWorkbench is the workbench on the example dataset with its model
+// range cut to 0.36–0.7 µm, in preview, so that a fit is quick.
+func cheapWorkbench(t *testing.T) *workbench {
+	t.Helper()
+	path := exampleDataset(t)
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var d map[string]any
+	if err := json.Unmarshal(raw, &d); err != nil {
+		t.Fatal(err)
+	}
+	d["model_to_um"] = 0.7
+	raw, _ = json.Marshal(d)
+	if err := os.WriteFile(path, raw, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	b, err := core.OpenDataset(context.Background(), path, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := core.NewSession(b)
+	s.Preview = true
+	wb := newWorkbench(test.NewTempApp(t), b, s)
+	t.Cleanup(wb.win.Close)
+	return wb
+}
+
+// TestFitFormRefuses: the form's request needs something free and an
+// epoch, and readable numbers.
+func TestFitFormRefuses(t *testing.T) {
+	wb := cheapWorkbench(t)
+	f := wb.newFitForm()
+	if len(f.epochs.Selected) != 1 || !strings.HasPrefix(f.epochs.Selected[0], "1 ") {
+		t.Errorf("epochs chosen at first: %v, want the shown one", f.epochs.Selected)
+	}
+	if _, err := f.request(); err == nil || !strings.Contains(err.Error(), "nothing to fit") {
+		t.Errorf("nothing free: %v", err)
+	}
+	f.elements.SetSelected([]string{"Sr"})
+	f.epochs.SetSelected(nil)
+	if _, err := f.request(); err == nil || !strings.Contains(err.Error(), "epoch") {
+		t.Errorf("no epoch: %v", err)
+	}
+	f.epochs.SetSelected(f.epochs.Options[1:3])
+	f.samples.SetText("2")
+	if _, err := f.request(); err == nil {
+		t.Error("2 posterior steps accepted")
+	}
+	f.samples.SetText("10")
+	f.seed.SetText("")
+	test.Type(f.seed, "17")
+	r, err := f.request()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(r.Free) != 1 || r.Free[0] != "Sr" || len(r.Epochs) != 2 || r.Epochs[0] != 1 || r.Epochs[1] != 2 || r.Samples != 10 || r.Seed != 17 {
+		t.Errorf("request %+v", r)
+	}
+}
+
+// TestWorkbenchFit runs a fit with a short posterior from the workbench:
+// the result table has a row per parameter with the posterior's columns,
+// the corner plot is drawn and exports as PNG and SVG, "Use best" sets the
+// session to the best model exactly (the velocity not snapped to the
+// slider's step), and is refused once the model has changed.
+func TestWorkbenchFit(t *testing.T) {
+	wb := cheapWorkbench(t)
+	f := wb.newFitForm()
+	f.elements.SetSelected([]string{"Sr"})
+	f.velocity.SetChecked(true)
+	f.samples.SetText("6")
+	r, err := f.request()
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := waitJob(t, wb, func() { wb.startFit(r) }).(*fitShown)
+	rows := fitRows(s.out)
+	if len(rows) != 3 || rows[1][0] != "X(Sr)" || rows[1][1] == "" || rows[1][2] == "" || rows[2][4] == "" {
+		t.Errorf("result rows %q", rows)
+	}
+	if s.corner == nil || s.img == nil || s.img.Bounds().Dx() < 300 {
+		t.Fatal("no corner plot")
+	}
+	dir := t.TempDir()
+	for _, name := range []string{"c.png", "c.svg"} {
+		if err := wb.exportCorner(s, filepath.Join(dir, name)); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "c.png")); !bytes.HasPrefix(b, []byte("\x89PNG")) {
+		t.Error("corner PNG not written")
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "c.svg")); !bytes.Contains(b, []byte("<svg")) {
+		t.Error("corner SVG not written")
+	}
+	if !strings.Contains(fitSummary(s.out), "hypothesis") {
+		t.Error("the summary does not carry the caution")
+	}
+	best := s.out.Models[0]
+	if err := wb.useFit(s.out); err != nil {
+		t.Fatal(err)
+	}
+	if wb.sess.Model != best {
+		t.Errorf("after Use best the session holds %+v, want %+v", wb.sess.Model, best)
+	}
+	if err := wb.useFit(s.out); err == nil {
+		t.Error("Use best accepted for a model that has changed since the fit")
+	}
+}
