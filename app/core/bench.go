@@ -33,6 +33,10 @@ type Bench struct {
 	once  sync.Once
 	model *synth.Model
 	err   error
+
+	fitOnce  sync.Once
+	fitModel *synth.Model
+	fitErr   error
 }
 
 func newBench(name string, d *Dataset, obs []*spectra.Spectrum, st *linelists.Store, warnings []string) *Bench {
@@ -49,6 +53,21 @@ func NewBench(name string, d *Dataset, obs []*spectra.Spectrum, st *linelists.St
 		return nil, fmt.Errorf("%d spectra for %d epochs", len(obs), len(d.Epochs))
 	}
 	return newBench(name, d, obs, st, warnings), nil
+}
+
+// FitModel returns the synthesis model the fits use, built on first use:
+// over the dataset's range like SynthModel, on a grid of a third of the
+// spectra's resolution element (synth.StepFor) — much cheaper at low
+// resolving power, and as fine as SynthModel's at R ≥ 1500.
+func (b *Bench) FitModel() (*synth.Model, error) {
+	step := synth.StepFor(b.Data.ResolvingPower)
+	if step == synth.DefaultStep {
+		return b.SynthModel()
+	}
+	b.fitOnce.Do(func() {
+		b.fitModel, b.fitErr = synth.NewModel(b.Store, b.Data.ModelFromUm*1e4, b.Data.ModelToUm*1e4, step)
+	})
+	return b.fitModel, b.fitErr
 }
 
 // SynthModel returns the synthesis model over the dataset's wavelength

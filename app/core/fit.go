@@ -145,7 +145,7 @@ func (b *Bench) Problem(m Model, r FitRequest) (*fit.Problem, []int, error) {
 			Temperature: fit.Bounds{Lower: MinTemperature, Upper: MaxTemperature},
 		})
 	}
-	if p.Model, err = b.SynthModel(); err != nil {
+	if p.Model, err = b.FitModel(); err != nil {
 		return nil, nil, err
 	}
 	return p, epochs, nil

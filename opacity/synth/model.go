@@ -18,6 +18,19 @@ import (
 // resolving power of 1500 and two thirds of one at 3000.
 const DefaultStep = 1.0 / 4500
 
+// StepFor returns a grid step in ln λ for spectra of resolving power R:
+// a third of the resolution element, 1/(3R) (three samples per resolution
+// element, common practice), but never finer than DefaultStep, and
+// DefaultStep for R ≤ 0 (unsmoothed spectra). A coarser grid is much
+// cheaper — the formal integral's cost grows roughly as the inverse square
+// of the step — so fits against low-resolution spectra use it.
+func StepFor(R float64) float64 {
+	if !(R > 0) || math.IsInf(R, 0) {
+		return DefaultStep
+	}
+	return math.Max(DefaultStep, 1/(3*R))
+}
+
 // Model turns a composition and ejecta parameters into spectra for one line
 // store and one observed wavelength range. It caches what does not depend on
 // the composition or the velocities (each line's bin and g f λ; the binned
