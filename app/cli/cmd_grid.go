@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"os/signal"
 	"path/filepath"
@@ -17,7 +18,7 @@ import (
 func init() {
 	c := &command{
 		name: "grid",
-		args: "--dataset FILE --spec GRID.json [--out FILE.csv] [--shard I/N] | grid merge OUT PART…",
+		args: "--dataset FILE --spec GRID.json [--out FILE.csv] [--shard I/N] [--spectra FROM,TO,STEP] | grid merge OUT PART…",
 		summary: "χ²/N of the model at every point of a grid (velocity × temperature × mass fractions × days × epoch), " +
 			"in shards for a job array (CSV with the inputs' checksums); 'grid merge' joins the parts",
 	}
@@ -33,6 +34,8 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 	dataset := fs.String("dataset", "", "dataset `FILE` (JSON, see README; required)")
 	specPath := fs.String("spec", "", "grid spec `FILE` (JSON, see README \"Running a grid on a cluster\"; required)")
 	out := fs.String("out", "grid.csv", "result `FILE`; a shard I/N writes FILE with .partI-of-N before the extension")
+	spectraText := fs.String("spectra", "", "also keep each point's model spectra at vacuum wavelengths `FROM,TO,STEP` in µm, "+
+		"e.g. 0.4,2.4,0.002 (at the distance, smoothed to the resolving power), in FILE.spectra.csv")
 	shardText := fs.String("shard", "", "run the I-th of N interleaved parts, counting from 0 (default: from SLURM_ARRAY_TASK_ID/COUNT, else the whole grid)")
 	pos, err := fs.parse(args)
 	if err != nil {
@@ -45,6 +48,12 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 		return usagef("--dataset: the dataset whose spectra the grid is compared with is required")
 	case *specPath == "":
 		return usagef("--spec: the grid spec is required")
+	}
+	var wave []float64
+	if *spectraText != "" {
+		if wave, err = parseWaveRange(*spectraText); err != nil {
+			return usagef("--spectra: %v", err)
+		}
 	}
 	shard := grid.Whole
 	if *shardText != "" {
@@ -75,7 +84,7 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return fileError("--dataset", err)
 	}
-	eval, labels, err := gridEvaluator(b, spec)
+	eval, labels, err := gridEvaluator(b, spec, wave)
 	if err != nil {
 		return usagef("--spec: %v", err)
 	}
@@ -88,7 +97,7 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 		ext := filepath.Ext(path)
 		path = fmt.Sprintf("%s.part%d-of-%d%s", strings.TrimSuffix(path, ext), shard.Index, shard.Count, ext)
 	}
-	opt := grid.Options{Inputs: inputs, Epochs: labels,
+	opt := grid.Options{Inputs: inputs, Epochs: labels, Wavelengths: wave,
 		Note: func(msg string) { fmt.Fprintln(stderr, "grid:", msg) }}
 	if isTerminal(stderr) {
 		opt.Progress = func(done, total int) { fmt.Fprintf(stderr, "\rgrid: %d of %d points", done, total) }
@@ -106,7 +115,47 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintf(stderr, "grid: shard %s: %d points, %d failed (see the error column), written to %s\n", shard, rep.Points, rep.Failed, path)
 	}
 	fmt.Fprintln(stdout, path)
+	if wave != nil {
+		fmt.Fprintln(stdout, grid.SpectraPath(path))
+	}
 	return nil
+}
+
+// maxSpectrumSamples bounds the wavelengths of --spectra: every point and
+// epoch writes one row of them.
+const maxSpectrumSamples = 100_000
+
+// parseWaveRange reads "FROM,TO,STEP" in µm into vacuum wavelengths in Å,
+// FROM, FROM+STEP, … up to TO (within a millionth of a step).
+func parseWaveRange(s string) ([]float64, error) {
+	f := strings.Split(s, ",")
+	if len(f) != 3 {
+		return nil, fmt.Errorf("%q: want FROM,TO,STEP in µm, e.g. 0.4,2.4,0.002", s)
+	}
+	var v [3]float64
+	for i, t := range f {
+		x, err := strconv.ParseFloat(strings.TrimSpace(t), 64)
+		if err != nil {
+			return nil, fmt.Errorf("%q is not a number", t)
+		}
+		v[i] = x
+	}
+	from, to, step := v[0], v[1], v[2]
+	if !(from > 0 && to > from && step > 0) || math.IsInf(to, 0) {
+		return nil, fmt.Errorf("%q: want 0 < FROM < TO and STEP > 0", s)
+	}
+	n := math.Floor((to-from)/step+1e-6) + 1
+	if n < 2 {
+		return nil, fmt.Errorf("%q: one wavelength; a spectrum needs at least 2", s)
+	}
+	if n > maxSpectrumSamples {
+		return nil, fmt.Errorf("%q: %.0f wavelengths, at most %d", s, n, maxSpectrumSamples)
+	}
+	w := make([]float64, int(n))
+	for i := range w {
+		w[i] = (from + float64(i)*step) * 1e4
+	}
+	return w, nil
 }
 
 // gridEvaluator returns the evaluator of spec's points for bench b and the
@@ -114,7 +163,7 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 // "e2", …), or, when the spec has an epoch axis, the one epoch of each
 // point ("fit"). Each point's model is the epoch's starting model with the
 // point's values instead.
-func gridEvaluator(b *core.Bench, spec *grid.Spec) (grid.Evaluator, []string, error) {
+func gridEvaluator(b *core.Bench, spec *grid.Spec, wave []float64) (grid.Evaluator, []string, error) {
 	names := spec.Names()
 	hasEpoch := false
 	for i, a := range spec.Axes {
@@ -166,11 +215,14 @@ func gridEvaluator(b *core.Bench, spec *grid.Spec) (grid.Evaluator, []string, er
 					m.MassFractions = c
 				}
 			}
-			ov, err := b.ComputeAt(ctx, m, 0, days)
+			ov, flux, err := b.ComputeSpectrum(ctx, m, 0, days, wave)
 			if err != nil {
 				return grid.Result{}, err
 			}
 			res.Epochs = append(res.Epochs, grid.EpochFit{Chi2N: ov.Reduced(), N: ov.N})
+			if wave != nil {
+				res.Spectra = append(res.Spectra, flux)
+			}
 		}
 		return res, nil
 	})

@@ -104,3 +104,70 @@ func TestGridCommand(t *testing.T) {
 		t.Errorf("no row for 0.24 c, 5000 K: %v", rows)
 	}
 }
+
+// TestGridCommandSpectra: --spectra keeps each point's model spectrum in a
+// second part file, one row per point and epoch on the asked wavelengths;
+// a row holds the flux the workbench's model gives at that point, bit for
+// bit; a bad range is a usage error.
+func TestGridCommandSpectra(t *testing.T) {
+	dir := t.TempDir()
+	path, err := core.WriteExample(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec := filepath.Join(dir, "grid.json")
+	if err := os.WriteFile(spec, []byte(`{"format":"broadline-grid/1","label":"test",
+		"axes":[{"quantity":"epoch","values":[0]},{"quantity":"velocity","values":[0.22,0.24]}]}`), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "g.csv")
+	st, stdout, errs := runCmd("grid", "--dataset", path, "--spec", spec, "--out", out, "--spectra", "0.5,0.6,0.01")
+	if st != 0 {
+		t.Fatalf("grid --spectra: %d %s", st, errs)
+	}
+	spath := filepath.Join(dir, "g.spectra.csv")
+	if !strings.Contains(stdout, spath) {
+		t.Errorf("stdout %q does not name the spectra part", stdout)
+	}
+	raw, err := os.ReadFile(spath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rows [][]string
+	for _, l := range strings.Split(string(raw), "\n") {
+		if l != "" && !strings.HasPrefix(l, "#") {
+			r, err := csv.NewReader(strings.NewReader(l)).Read()
+			if err != nil {
+				t.Fatal(err)
+			}
+			rows = append(rows, r)
+		}
+	}
+	if len(rows) != 3 || len(rows[0]) != 2+11 || rows[0][0] != "point" || rows[2][0] != "1" {
+		t.Fatalf("spectra part rows %v", rows)
+	}
+	bench, err := core.OpenDataset(context.Background(), path, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := bench.Data.StartModel(0)
+	m.PhotosphereVelocity = 0.24
+	var wave []float64
+	for i := range 11 {
+		wave = append(wave, (0.5+float64(i)*0.01)*1e4)
+	}
+	_, flux, err := bench.ComputeSpectrum(context.Background(), m, 0, 0, wave)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, f := range flux {
+		if got, _ := strconv.ParseFloat(rows[2][2+i], 64); got != f || !(got > 0) {
+			t.Errorf("point 1 at %g Å: %v in the part, %v from the workbench's model", wave[i], rows[2][2+i], f)
+		}
+	}
+	for _, bad := range []string{"0.5,0.6", "0.6,0.5,0.01", "0.5,0.6,0", "0.1,30,1e-6", "a,b,c", "0.5,0.51,0.02"} {
+		if st, _, errs := runCmd("grid", "--dataset", path, "--spec", spec, "--out", out, "--spectra", bad); st != 2 || !strings.Contains(errs, "--spectra") {
+			t.Errorf("--spectra %s: status %d, %s", bad, st, errs)
+		}
+	}
+}

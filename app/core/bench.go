@@ -96,16 +96,25 @@ func (b *Bench) Compute(ctx context.Context, m Model, without int) (*Overlay, er
 // instead of the epoch's (days ≤ 0: the epoch's), still compared with the
 // epoch's spectrum: for grids over the age.
 func (b *Bench) ComputeAt(ctx context.Context, m Model, without int, days float64) (*Overlay, error) {
+	ov, _, err := b.ComputeSpectrum(ctx, m, without, days, nil)
+	return ov, err
+}
+
+// ComputeSpectrum is ComputeAt that also returns, from the same synthesis,
+// the model flux at the vacuum wavelengths wave (Å, increasing; none when
+// wave is nil), put at the dataset's distance and smoothed to its resolving
+// power as the overlay is: for grids that keep the model spectra.
+func (b *Bench) ComputeSpectrum(ctx context.Context, m Model, without int, days float64, wave []float64) (*Overlay, []float64, error) {
 	if err := m.Validate(b.Data); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	sm, err := b.SynthModel()
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	comp, err := m.MassFractions.Mix()
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	set := synth.Settings{Preview: m.Preview, Workers: runtime.GOMAXPROCS(0)}
 	if without > 0 {
@@ -115,12 +124,18 @@ func (b *Bench) ComputeAt(ctx context.Context, m Model, without int, days float6
 	if days > 0 {
 		ej.Time = days * physics.Day
 	}
-	ov, err := fit.CompareModel(ctx, sm, comp, ej, set, b.Data.DistanceMpc*physics.Megaparsec, b.Observed[m.Epoch], b.Data.ResolvingPower)
+	ov, res, err := fit.CompareModelSpectrum(ctx, sm, comp, ej, set, b.Data.DistanceMpc*physics.Megaparsec, b.Observed[m.Epoch], b.Data.ResolvingPower)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	ov.Warnings = append(slices.Clone(b.LoadWarnings), ov.Warnings...)
-	return ov, nil
+	var flux []float64
+	if wave != nil {
+		if flux, _, err = res.Observe(b.Data.ResolvingPower, wave); err != nil {
+			return nil, nil, err
+		}
+	}
+	return ov, flux, nil
 }
 
 // Param is a parameter of the photosphere a sweep varies.

@@ -42,15 +42,24 @@ func AttributeFeatures(ctx context.Context, m *synth.Model, comp opacity.Composi
 // the synthesis's.
 func CompareModel(ctx context.Context, m *synth.Model, comp opacity.Composition, ej synth.Ejecta, set synth.Settings,
 	d float64, obs *spectra.Spectrum, R float64) (*Overlay, error) {
+	ov, _, err := CompareModelSpectrum(ctx, m, comp, ej, set, d, obs, R)
+	return ov, err
+}
+
+// CompareModelSpectrum is CompareModel that also returns the synthetic
+// spectrum, its Flux already put at distance d (e.g. to resample it
+// elsewhere with Observe).
+func CompareModelSpectrum(ctx context.Context, m *synth.Model, comp opacity.Composition, ej synth.Ejecta, set synth.Settings,
+	d float64, obs *spectra.Spectrum, R float64) (*Overlay, *synth.Result, error) {
 	res, err := m.Spectrum(ctx, comp, ej, set)
 	if err != nil {
-		return nil, fmt.Errorf("synthesis: %w", err)
+		return nil, nil, fmt.Errorf("synthesis: %w", err)
 	}
 	res.Flux = res.AtDistance(d)
 	ov, err := Compare(obs, res, R)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	ov.Warnings = res.Warnings
-	return ov, nil
+	return ov, res, nil
 }

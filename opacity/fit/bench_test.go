@@ -8,44 +8,12 @@ import (
 	"syscall"
 	"testing"
 
-	"broadline/linelists"
+	"broadline/internal/benchstore"
 	"broadline/opacity"
 	"broadline/opacity/synth"
 	"broadline/physics"
 	"broadline/spectra"
 )
-
-// millionLineStore returns an invented store of n lines over 2500–50000 Å
-// in 16 species (Sr, Y, Zr, Ba, La, Ce, Nd, Sm II and III), 400 levels
-// each, with log gf spread so that most lines are weak (as
-// opacity/synth's benchmark store).
-func millionLineStore(b *testing.B, n int) *linelists.Store {
-	b.Helper()
-	names := []string{"Sr II", "Y II", "Zr II", "Ba II", "La II", "Ce II", "Nd II", "Sm II",
-		"Sr III", "Y III", "Zr III", "Ba III", "La III", "Ce III", "Nd III", "Sm III"}
-	rng := rand.New(rand.NewPCG(2, 3))
-	bl := linelists.NewBuilder()
-	levels := make([][]float64, len(names))
-	for s := range names {
-		levels[s] = make([]float64, 400)
-		for k := range levels[s] {
-			levels[s][k] = 6 * rng.Float64() * rng.Float64()
-		}
-		levels[s][0] = 0
-	}
-	for range n {
-		s := rng.IntN(len(names))
-		bl.Add(linelists.Line{
-			Wavelength:  2500 * math.Exp(rng.Float64()*math.Log(20)),
-			LogGF:       -5 + 5*math.Pow(rng.Float64(), 3),
-			Species:     linelists.MustSpecies(names[s]),
-			LowerEnergy: levels[s][rng.IntN(400)],
-			LowerG:      float32(2*rng.IntN(6) + 2),
-		})
-	}
-	st, _ := bl.Build()
-	return st
-}
 
 // BenchmarkFitMillionLines fits three free mass fractions (Sr, Ce, Nd;
 // log-uniform bounds 1e-6–1, free scale) of one invented epoch over
@@ -59,7 +27,7 @@ func millionLineStore(b *testing.B, n int) *linelists.Store {
 // values themselves wander along a flat valley). It reports the evaluations per fit and per
 // second (one evaluation = one synthesis + comparison).
 func BenchmarkFitMillionLines(b *testing.B) {
-	st := millionLineStore(b, 1_000_000)
+	st := benchstore.New(1_000_000)
 	m, err := synth.NewModel(st, 4000, 25000, synth.StepFor(1000))
 	if err != nil {
 		b.Fatal(err)

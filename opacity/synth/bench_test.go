@@ -2,55 +2,22 @@ package synth
 
 import (
 	"context"
-	"math"
-	"math/rand/v2"
 	"runtime"
 	"strconv"
 	"syscall"
 	"testing"
 
-	"broadline/linelists"
+	"broadline/internal/benchstore"
 	"broadline/opacity"
 	"broadline/physics"
 )
-
-// benchStore returns an invented store of n lines over 2500–50000 Å in 16
-// species (Sr, Y, Zr, Ba, La, Ce, Nd, Sm II and III), 400 levels each, with
-// log gf spread so that most lines are weak.
-func benchStore(b *testing.B, n int) *linelists.Store {
-	b.Helper()
-	names := []string{"Sr II", "Y II", "Zr II", "Ba II", "La II", "Ce II", "Nd II", "Sm II",
-		"Sr III", "Y III", "Zr III", "Ba III", "La III", "Ce III", "Nd III", "Sm III"}
-	rng := rand.New(rand.NewPCG(2, 3))
-	bl := linelists.NewBuilder()
-	levels := make([][]float64, len(names))
-	for s := range names {
-		levels[s] = make([]float64, 400)
-		for k := range levels[s] {
-			levels[s][k] = 6 * rng.Float64() * rng.Float64()
-		}
-		levels[s][0] = 0
-	}
-	for range n {
-		s := rng.IntN(len(names))
-		bl.Add(linelists.Line{
-			Wavelength:  2500 * math.Exp(rng.Float64()*math.Log(20)),
-			LogGF:       -5 + 5*math.Pow(rng.Float64(), 3),
-			Species:     linelists.MustSpecies(names[s]),
-			LowerEnergy: levels[s][rng.IntN(400)],
-			LowerG:      float32(2*rng.IntN(6) + 2),
-		})
-	}
-	st, _ := bl.Build()
-	return st
-}
 
 // BenchmarkMillionLines measures a spectrum over 0.4–2.5 µm at R = 3000
 // (smoothing included) from a 1-million-line store after a change of
 // composition and photosphere velocity: issue goal ≤ 100 ms for the preview,
 // ≤ 1 s for the full synthesis, on 2 cores.
 func BenchmarkMillionLines(b *testing.B) {
-	st := benchStore(b, 1_000_000)
+	st := benchstore.New(1_000_000)
 	m, err := NewModel(st, 4000, 25000, 0)
 	if err != nil {
 		b.Fatal(err)
@@ -129,7 +96,7 @@ func BenchmarkLineCount(b *testing.B) {
 		"Sr=0.2,Y=0.1,Zr=0.2,Ba=0.1,La=0.1,Ce=0.05,Nd=0.2,Sm=0.05"}
 	for _, n := range []int{10_000, 100_000, 1_000_000} {
 		b.Run(strconv.Itoa(n), func(b *testing.B) {
-			m, err := NewModel(benchStore(b, n), 4000, 25000, 0)
+			m, err := NewModel(benchstore.New(n), 4000, 25000, 0)
 			if err != nil {
 				b.Fatal(err)
 			}

@@ -22,6 +22,11 @@ func (r *Result) Observe(R float64, grid []float64) (flux, normalized []float64,
 	if grid == nil {
 		return flux, normalized, nil
 	}
+	if len(grid) < 2 {
+		// A flux-conserving resample needs each pixel's edges, which one
+		// point alone does not give.
+		return nil, nil, fmt.Errorf("synth: a grid of %d points: resampling needs at least 2", len(grid))
+	}
 	for i, g := range grid {
 		if g < w[0] || g > w[len(w)-1] {
 			return nil, nil, fmt.Errorf("synth: grid point %d at %g Å outside the model's range [%g, %g] Å", i, g, w[0], w[len(w)-1])

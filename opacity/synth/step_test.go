@@ -16,3 +16,16 @@ func TestStepFor(t *testing.T) {
 		}
 	}
 }
+
+// TestObserveOnePoint: a grid of one point has no pixel edges, so a
+// flux-conserving resample onto it is refused instead of giving 0.
+func TestObserveOnePoint(t *testing.T) {
+	r := &Result{Wavelength: []float64{4000, 5000, 6000, 7000}, Flux: []float64{1, 1, 1, 1}, Normalized: []float64{1, 1, 1, 1}}
+	if _, _, err := r.Observe(0, []float64{5500}); err == nil {
+		t.Error("a one-point grid accepted")
+	}
+	f, _, err := r.Observe(0, []float64{5000, 5500, 6000})
+	if err != nil || len(f) != 3 || math.Abs(f[1]-1) > 1e-12 {
+		t.Errorf("a flat spectrum on three points: %v %v", f, err)
+	}
+}
