@@ -5,8 +5,8 @@ import (
 	"testing"
 
 	"broadline/app/core"
-	"broadline/internal/benchstore"
 	"broadline/grid"
+	"broadline/internal/benchstore"
 )
 
 // BenchmarkGridDemo: grid points per second of the real model on the
