@@ -96,7 +96,7 @@ func (d *Dataset) Check() error {
 	case d.MassFractions.IsZero():
 		return fmt.Errorf("mass_fractions: give the element mix, e.g. \"Ca=0.4,Sr=0.3,Nd=0.3\"")
 	}
-	if err := d.StartModel(0).validateZone(d); err != nil {
+	if err := d.StartModel(0).ValidateZone(d); err != nil {
 		return fmt.Errorf("inner_mass_fractions, zone_boundary_c: %w", err)
 	}
 	for i, e := range d.Epochs {

@@ -2,6 +2,8 @@ package core
 
 import (
 	"fmt"
+	"strconv"
+	"strings"
 
 	"broadline/opacity/synth"
 	"broadline/physics"
@@ -59,16 +61,16 @@ func (m Model) Validate(d *Dataset) error {
 	case m.MassFractions.IsZero():
 		return fmt.Errorf("mass fractions: none given")
 	}
-	return m.validateZone(d)
+	return m.ValidateZone(d)
 }
 
 // HasZone reports whether m has an inner zone of its own composition.
 func (m Model) HasZone() bool { return !m.InnerMassFractions.IsZero() }
 
-// validateZone checks the inner zone: both its composition and its
+// ValidateZone checks the inner zone: both its composition and its
 // boundary, or neither; the boundary between the dataset's inner and outer
 // velocities.
-func (m Model) validateZone(d *Dataset) error {
+func (m Model) ValidateZone(d *Dataset) error {
 	switch {
 	case !m.HasZone() && m.ZoneBoundary == 0:
 		return nil
@@ -112,4 +114,40 @@ func (d *Dataset) StartModel(i int) Model {
 	e := d.Epochs[i]
 	return Model{Epoch: i, PhotosphereVelocity: e.PhotosphereVelocity, Temperature: e.Temperature, MassFractions: d.MassFractions,
 		InnerMassFractions: d.InnerMassFractions, ZoneBoundary: d.ZoneBoundary}
+}
+
+// WithCompositions returns m with the element mixes the analyst typed:
+// main for the ejecta (outside the inner zone, if any), inner for the
+// inner zone ("" or blank: uniform ejecta, boundary ignored) and boundary
+// its outer edge ("0.16c" or "48000km/s"). An error names the entry at
+// fault and m is not changed.
+func (m Model) WithCompositions(d *Dataset, main, inner, boundary string) (Model, error) {
+	c, err := ParseComposition(main)
+	if err != nil {
+		return m, fmt.Errorf("mass fractions: %w", err)
+	}
+	out := m.WithoutZone()
+	out.MassFractions = c
+	if strings.TrimSpace(inner) == "" {
+		return out, nil
+	}
+	if out.InnerMassFractions, err = ParseComposition(inner); err != nil {
+		return m, fmt.Errorf("inner zone mass fractions: %w", err)
+	}
+	if out.ZoneBoundary, err = ParseVelocity(boundary); err != nil {
+		return m, fmt.Errorf("zone boundary: %w", err)
+	}
+	if err := out.ValidateZone(d); err != nil {
+		return m, err
+	}
+	return out, nil
+}
+
+// BoundaryText is the zone boundary as the workbench's entry shows it
+// ("0.16c"; "" without a zone), which ParseVelocity reads back.
+func (m Model) BoundaryText() string {
+	if !m.HasZone() {
+		return ""
+	}
+	return strconv.FormatFloat(m.ZoneBoundary, 'g', -1, 64) + "c"
 }

@@ -141,3 +141,53 @@ func TestZoneSession(t *testing.T) {
 		}
 	}
 }
+
+// TestWithCompositions checks the workbench's entries: a blank inner mix
+// gives uniform ejecta, a full one a zone read back from its texts, and a
+// bad entry an error naming it with the model unchanged.
+func TestWithCompositions(t *testing.T) {
+	b := demoBench(t)
+	d := b.Data
+	m := d.StartModel(2)
+	u, err := m.WithCompositions(d, "Sr=1", "  ", "0.2c")
+	if err != nil || u.HasZone() || u.MassFractions != mustComp(t, "Sr=1") || u.BoundaryText() != "" {
+		t.Errorf("blank inner zone: %+v, %v", u, err)
+	}
+	z, err := m.WithCompositions(d, "Sr=1", "Nd=1,Sr=1", "60000km/s")
+	if err != nil || !z.HasZone() || math.Abs(z.ZoneBoundary-0.2001384) > 1e-6 {
+		t.Fatalf("zone: %+v, %v", z, err)
+	}
+	// The texts the entries show read back to the same model.
+	again, err := z.WithCompositions(d, z.MassFractions.String(), z.InnerMassFractions.String(), z.BoundaryText())
+	if err != nil || again != z {
+		t.Errorf("read back %+v (%v), want %+v", again, err, z)
+	}
+	for _, c := range []struct{ main, inner, boundary, want string }{
+		{"Sr=x", "", "", "mass fractions"},
+		{"Sr=1", "Nd=x", "0.2c", "inner zone mass fractions"},
+		{"Sr=1", "Nd=1", "0.2", "zone boundary"},
+		{"Sr=1", "Nd=1", "0.9c", "outer velocity"},
+	} {
+		got, err := m.WithCompositions(d, c.main, c.inner, c.boundary)
+		if err == nil || !strings.Contains(err.Error(), c.want) || got != m {
+			t.Errorf("%+v: %v (model changed: %v)", c, err, got != m)
+		}
+	}
+}
+
+// TestLineless checks the label of elements without lines on the demo:
+// the demo's electron donors are named, its elements with lines are not.
+func TestLineless(t *testing.T) {
+	b := demoBench(t)
+	got := b.Lineless(b.Data.StartModel(2))
+	want := []string{"Se", "Br", "Kr", "Rb", "Mo", "Ru", "Pd", "Te", "Xe"}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("lineless %v, want %v", got, want)
+	}
+	if s := LinelessText(got); !strings.Contains(s, "only supply electrons") || !strings.Contains(s, "Se, Br") {
+		t.Errorf("label %q", s)
+	}
+	if LinelessText(nil) != "" {
+		t.Error("label without lineless elements")
+	}
+}
