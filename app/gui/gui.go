@@ -62,15 +62,15 @@ type workbench struct {
 	zoneLabel      *widget.Label
 	lineless       *widget.Label
 	applyBtn       *widget.Button
-	preview   *widget.Check
-	status    *widget.Label
-	busy      *widget.ProgressBarInfinite
-	progress  *widget.ProgressBar // of a sweep or a comparison
-	cancelBtn *widget.Button
-	candList  *widget.List
-	figure    *canvas.Image
-	features  *widget.Table
-	featRows  []spectra.Feature
+	preview        *widget.Check
+	status         *widget.Label
+	busy           *widget.ProgressBarInfinite
+	progress       *widget.ProgressBar // of a sweep or a comparison
+	cancelBtn      *widget.Button
+	candList       *widget.List
+	figure         *canvas.Image
+	features       *widget.Table
+	featRows       []spectra.Feature
 	// featAttr holds the model's identification of each feature, for the
 	// model that was shown when Identify was pressed; nil until then.
 	featAttr []*synth.Attribution
