@@ -31,11 +31,15 @@ func init() {
 type fitReport struct {
 	Dataset string `json:"dataset"`
 	// Epochs are the dataset's epochs fitted, numbered from 1.
-	Epochs            []int      `json:"epochs"`
-	Free              []string   `json:"free_elements"`
-	FitVelocity       bool       `json:"fit_velocity"`
-	FitTemperature    bool       `json:"fit_temperature"`
-	StartComposition  string     `json:"start_mass_fractions"`
+	Epochs           []int    `json:"epochs"`
+	Free             []string `json:"free_elements"`
+	FitVelocity      bool     `json:"fit_velocity"`
+	FitTemperature   bool     `json:"fit_temperature"`
+	StartComposition string   `json:"start_mass_fractions"`
+	// InnerZone and ZoneBoundary are the inner zone's fixed mix and outer
+	// edge (v/c), absent for uniform ejecta.
+	InnerZone         string     `json:"inner_zone_mass_fractions,omitempty"`
+	ZoneBoundary      float64    `json:"zone_boundary_c,omitempty"`
 	MassFractionRange [2]float64 `json:"mass_fraction_range"`
 	// Best is the optimiser's result: best values, χ²/N joint and per
 	// epoch, the scales and the stop reason.
@@ -56,6 +60,10 @@ func runFit(c *command, args []string, stdout, stderr io.Writer) error {
 	fs.Var(&epochList, "epochs", "the dataset's `EPOCHS` to fit jointly, numbered from 1, e.g. 1,3 (default: all), sharing one composition")
 	fracs := fs.String("mass-fractions", "", "starting composition, e.g. \"Sr=0.01,Nd=1e-3,Kr=0.99\" (default: the dataset's); "+
 		"the elements not freed keep their ratios and fill the rest")
+	innerFracs := fs.String("inner-mass-fractions", "", "the inner zone's mass fractions (held fixed), from the centre up to --zone-boundary "+
+		"(default: the dataset's zone, if it has one)")
+	boundary := fs.String("zone-boundary", "", "outer edge of the inner zone, a velocity such as 0.16c (with --inner-mass-fractions)")
+	uniform := fs.Bool("uniform", false, "leave out the dataset's inner zone: one composition throughout")
 	lowest := fs.Float64("lowest-fraction", fit.DefaultMassFractionLower, "lower bound of each free mass fraction (the prior is uniform in log X)")
 	highest := fs.Float64("highest-fraction", fit.DefaultMassFractionUpper, "upper bound of each free mass fraction")
 	fitV := fs.Bool("fit-velocity", false, "also fit each epoch's photosphere velocity")
@@ -88,6 +96,10 @@ func runFit(c *command, args []string, stdout, stderr io.Writer) error {
 		return usagef("--samples-csv: only with --samples N")
 	case *walkers != 0 && *samples == 0:
 		return usagef("--walkers: only with --samples N")
+	case (*innerFracs != "") != (*boundary != ""):
+		return usagef("--inner-mass-fractions and --zone-boundary go together")
+	case *uniform && *innerFracs != "":
+		return usagef("--uniform leaves out the inner zone; do not give --inner-mass-fractions or --zone-boundary with it")
 	}
 	if *samples > 0 && *samplesCSV == "" {
 		*samplesCSV = "fit-samples.csv"
@@ -120,6 +132,14 @@ func runFit(c *command, args []string, stdout, stderr io.Writer) error {
 			return usagef("--mass-fractions: %v", err)
 		}
 	}
+	switch {
+	case *uniform:
+		start = start.WithoutZone()
+	case *innerFracs != "":
+		if start, err = start.WithCompositions(b.Data, start.MassFractions.String(), *innerFracs, *boundary); err != nil {
+			return usagef("--inner-mass-fractions, --zone-boundary: %v", err)
+		}
+	}
 	if _, _, err := b.Problem(start, req); err != nil {
 		return usagef("%v", err)
 	}
@@ -144,7 +164,7 @@ func runFit(c *command, args []string, stdout, stderr io.Writer) error {
 		return err
 	}
 	rep := fitReport{Dataset: b.Name, Free: free, FitVelocity: *fitV, FitTemperature: *fitT,
-		StartComposition: start.MassFractions.String(), MassFractionRange: [2]float64{*lowest, *highest},
+		StartComposition: start.MassFractions.String(), InnerZone: start.InnerMassFractions.String(), ZoneBoundary: start.ZoneBoundary, MassFractionRange: [2]float64{*lowest, *highest},
 		Best: res.Best, Posterior: res.Posterior, Cautions: core.Cautions}
 	for _, e := range res.Epochs {
 		rep.Epochs = append(rep.Epochs, e+1)

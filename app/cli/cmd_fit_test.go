@@ -89,6 +89,10 @@ func TestFitCommand(t *testing.T) {
 	if len(rows) != 1+36 || strings.Join(rows[0], ",") != "step,walker,log10_X_Sr,v_ph_c_3,log_posterior" {
 		t.Errorf("samples CSV: %d rows, header %v", len(rows), rows[0])
 	}
+	// The demo dataset has an inner zone, held fixed and reported.
+	if rep.InnerZone == "" || !(rep.ZoneBoundary > 0) || !strings.Contains(strings.Join(rep.Posterior.Warnings, " "), "inner zone") {
+		t.Errorf("inner zone %q at %gc, warnings %q", rep.InnerZone, rep.ZoneBoundary, rep.Posterior.Warnings)
+	}
 	if !strings.Contains(rep.Cautions, "hypothesis") {
 		t.Errorf("the result does not carry the model's cautions: %q", rep.Cautions)
 	}
@@ -116,6 +120,9 @@ func TestFitCommandErrors(t *testing.T) {
 		{[]string{"--dataset", path, "--free", "Sr", "--samples-csv", "x.csv"}, 2, "--samples"},
 		{[]string{"--dataset", path, "--free", "Sr", "--samples", "2"}, 2, "--samples"},
 		{[]string{"--dataset", path, "--free", "Sr", "--correction-order", "7"}, 2, "--correction-order"},
+		{[]string{"--dataset", path, "--free", "Sr", "--inner-mass-fractions", "Nd=1"}, 2, "together"},
+		{[]string{"--dataset", path, "--free", "Sr", "--uniform", "--inner-mass-fractions", "Nd=1", "--zone-boundary", "0.15c"}, 2, "--uniform"},
+		{[]string{"--dataset", path, "--free", "Sr", "--inner-mass-fractions", "Nd=1", "--zone-boundary", "0.5c"}, 2, "--zone-boundary"},
 		{[]string{"--dataset", filepath.Join(t.TempDir(), "none.json"), "--free", "Sr"}, 1, "--dataset"},
 	} {
 		st, out, errs := runCmd(append([]string{"fit"}, c.args...)...)

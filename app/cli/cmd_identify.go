@@ -93,7 +93,11 @@ func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
 	if err := w.Error(); err != nil {
 		return err
 	}
-	su.describe(stderr, "identify", *f.preview, nil)
+	var warnings []string
+	if l := core.LinelessText(core.LinelessIn(su.store, su.mixes()...)); l != "" {
+		warnings = append(warnings, l+"; no feature can be attributed to them")
+	}
+	su.describe(stderr, "identify", *f.preview, warnings)
 	fmt.Fprintf(stderr, "identify: %d features of significance ≥ %g attributed with the model at v_ph = %.3f c, T = %.0f K; "+
 		"shares are of the absorbed equivalent width with each element alone (absorption-only); an attribution is a hypothesis\n",
 		len(feats), *minSig, su.ejecta.BetaPh, su.ejecta.Temperature)

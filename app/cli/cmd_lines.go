@@ -9,11 +9,26 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strings"
 
+	"broadline/app/core"
 	"broadline/linelists"
+	"broadline/opacity"
 	"broadline/physics"
 )
+
+// elementsWithLines returns the Z of the elements with lines in st, ascending.
+func elementsWithLines(st *linelists.Store) []int {
+	var zs []int
+	for _, sp := range st.SpeciesTable {
+		if z := int(sp.Z); !slices.Contains(zs, z) {
+			zs = append(zs, z)
+		}
+	}
+	slices.Sort(zs)
+	return zs
+}
 
 func init() {
 	c := &command{
@@ -27,10 +42,10 @@ func init() {
 
 // linesFlags are the flags of "broadline lines".
 type linesFlags struct {
-	out, columns, species, medium, levels, overrides, only string
-	headerRow, noCache, keepDup                            bool
-	wlMin, wlMax, minLogGF                                 float64
-	hasMinLogGF                                            bool
+	out, columns, species, medium, levels, overrides, only, fracs string
+	headerRow, noCache, keepDup                                   bool
+	wlMin, wlMax, minLogGF                                        float64
+	hasMinLogGF                                                   bool
 }
 
 func runLines(c *command, args []string, stdout, stderr io.Writer) error {
@@ -53,6 +68,7 @@ func runLines(c *command, args []string, stdout, stderr io.Writer) error {
 	})
 	fs.BoolVar(&f.noCache, "no-cache", false, "neither read nor write the binary cache next to each file")
 	fs.BoolVar(&f.keepDup, "keep-duplicates", false, "keep duplicate lines (they are counted either way)")
+	fs.StringVar(&f.fracs, "mass-fractions", "", `summary: also name the elements of this mix that have no lines in the files, e.g. "Sr=0.3,Te=0.7"`)
 	pos, err := fs.parse(args)
 	if err != nil {
 		return err
@@ -73,6 +89,17 @@ func runLines(c *command, args []string, stdout, stderr io.Writer) error {
 	if sub == "summary" && f.out != "" {
 		return usagef("lines summary writes no file; --out belongs to lines convert")
 	}
+	var mix *opacity.Composition
+	if f.fracs != "" {
+		if sub != "summary" {
+			return usagef("--mass-fractions belongs to lines summary")
+		}
+		c, err := opacity.ParseComposition(f.fracs)
+		if err != nil {
+			return usagef("--mass-fractions: %v", err)
+		}
+		mix = &c
+	}
 	opts, err := f.options()
 	if err != nil {
 		return err
@@ -85,6 +112,18 @@ func runLines(c *command, args []string, stdout, stderr io.Writer) error {
 		var b bytes.Buffer
 		if err := linelists.WriteSummary(&b, st, rep); err != nil {
 			return err
+		}
+		var with []string
+		for _, z := range elementsWithLines(st) {
+			with = append(with, core.ElementSymbol(z))
+		}
+		fmt.Fprintf(&b, "elements with lines: %s; any other element of a composition only supplies electrons\n", strings.Join(with, ", "))
+		if mix != nil {
+			if l := core.LinelessText(core.LinelessIn(st, *mix)); l != "" {
+				fmt.Fprintln(&b, "--mass-fractions: "+l)
+			} else {
+				fmt.Fprintln(&b, "--mass-fractions: every element has lines")
+			}
 		}
 		_, err := stdout.Write(b.Bytes())
 		return err

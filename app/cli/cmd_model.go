@@ -22,12 +22,21 @@ import (
 	"broadline/spectra"
 )
 
+// mixes returns the compositions of the setup: the main one and its zones'.
+func (su *modelSetup) mixes() []opacity.Composition {
+	out := []opacity.Composition{su.comp}
+	for _, z := range su.ejecta.Zones {
+		out = append(out, z.Composition)
+	}
+	return out
+}
+
 func init() {
 	c := &command{
 		name: "model",
 		args: "--lines FILE… --mass-fractions LIST --days D --photosphere-velocity V --outer-velocity V " +
 			"--temperature K --ejecta-mass M [--inner-velocity V] [--density-index N] [--from-um A --to-um B] " +
-			"[--resolving-power R] [--without ELEMENT…]",
+			"[--inner-mass-fractions LIST --zone-boundary V] [--resolving-power R] [--without ELEMENT…]",
 		summary: "synthesise a photospheric spectrum (CSV wavelength_um,flux,normalized_flux)",
 	}
 	c.run = func(args []string, stdout, stderr io.Writer) error { return runModel(c, args, stdout, stderr) }
@@ -110,7 +119,9 @@ func (n *numberFlag) value() float64 {
 // the photosphere and composition flags then override those values.
 type modelFlags struct {
 	lines, levels, without    listFlag
-	fracs                     *string
+	fracs, innerFracs         *string
+	boundary                  velocityFlag
+	uniform                   *bool
 	daysF, tempF, massF       numberFlag
 	vph, vout, vin            velocityFlag
 	index, from, to, rp, dist *float64
@@ -130,6 +141,9 @@ func addModelFlags(fs *flagSet, withVph bool) *modelFlags {
 	fs.Var(&f.lines, "lines", "line-list `FILE` (repeatable, or comma-separated; required without --dataset)")
 	fs.Var(&f.levels, "levels", "levels `FILE` for partition functions (optional, repeatable)")
 	f.fracs = fs.String("mass-fractions", "", "element mass fractions, e.g. \"Sr=0.3,Nd=0.1,Ca=0.6\" (normalised; required without --dataset)")
+	f.innerFracs = fs.String("inner-mass-fractions", "", "element mass fractions of an inner zone, from the centre up to --zone-boundary (--mass-fractions then holds outside it)")
+	fs.Var(&f.boundary, "zone-boundary", "outer edge of the inner zone, a `velocity` such as 0.16c (with --inner-mass-fractions)")
+	f.uniform = fs.Bool("uniform", false, "with --dataset: leave out the dataset's inner zone (one composition throughout)")
 	fs.Var(&f.daysF, "days", "time since explosion in `days` (required without --dataset)")
 	if withVph {
 		fs.Var(&f.vph, "photosphere-velocity", "photosphere `velocity`, e.g. 0.2c or 60000km/s (required without --dataset)")
@@ -262,6 +276,22 @@ func (f *modelFlags) setup(ctx context.Context, vph, tph float64) (*modelSetup, 
 		BetaIn: f.vin.beta, BetaPh: vph, BetaMax: vout,
 		DensityIndex: *f.index, Temperature: temp, Diluted: *f.diluted,
 	}
+	if f.given["uniform"] {
+		return nil, usagef("--uniform: only with --dataset (without it, leave out --inner-mass-fractions)")
+	}
+	if (*f.innerFracs != "") != f.boundary.set {
+		return nil, usagef("--inner-mass-fractions and --zone-boundary go together")
+	}
+	if *f.innerFracs != "" {
+		inner, err := opacity.ParseComposition(*f.innerFracs)
+		if err != nil {
+			return nil, usagef("--inner-mass-fractions: %v", err)
+		}
+		if b := f.boundary.beta; !(b > f.vin.beta && b < vout) {
+			return nil, usagef("--zone-boundary %gc: want between the inner velocity %gc and the outer velocity %gc", b, f.vin.beta, vout)
+		}
+		ej.Zones = []synth.Zone{{Inner: 0, Outer: f.boundary.beta, Composition: inner}}
+	}
 	if err := ej.Validate(); err != nil {
 		return nil, usagef("%s", strings.TrimPrefix(err.Error(), "synth: "))
 	}
@@ -330,6 +360,23 @@ func (f *modelFlags) setupDataset(ctx context.Context, vph, tph float64) (*model
 			return nil, usagef("--mass-fractions: %v", err)
 		}
 	}
+	if *f.uniform {
+		if *f.innerFracs != "" || f.boundary.set {
+			return nil, usagef("--uniform leaves out the inner zone; do not give --inner-mass-fractions or --zone-boundary with it")
+		}
+		m = m.WithoutZone()
+	}
+	if *f.innerFracs != "" {
+		if m.InnerMassFractions, err = core.ParseComposition(*f.innerFracs); err != nil {
+			return nil, usagef("--inner-mass-fractions: %v", err)
+		}
+	}
+	if f.boundary.set {
+		m.ZoneBoundary = f.boundary.beta
+	}
+	if err := m.ValidateZone(d); err != nil {
+		return nil, usagef("--inner-mass-fractions, --zone-boundary: %v", err)
+	}
 	switch {
 	case !math.IsNaN(vph):
 		m.PhotosphereVelocity = vph
@@ -378,6 +425,14 @@ func (su *modelSetup) describe(stderr io.Writer, name string, preview bool, warn
 		fmt.Fprint(stderr, "; ABSORPTION-ONLY PREVIEW, not the full model")
 	}
 	fmt.Fprintln(stderr)
+	for _, z := range su.ejecta.Zones {
+		where := "above it: only --mass-fractions forms lines"
+		if su.ejecta.BetaPh <= z.Outer {
+			where = "inside it: lines from both zones"
+		}
+		fmt.Fprintf(stderr, "%s: two zones: the inner mass fractions up to %.4g c, --mass-fractions outside; the photosphere at %.4g c lies %s\n",
+			name, z.Outer, su.ejecta.BetaPh, where)
+	}
 	for _, w := range append(slices.Clone(su.report.Warnings), warnings...) {
 		fmt.Fprintln(stderr, name+": warning:", w)
 	}

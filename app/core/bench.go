@@ -5,9 +5,11 @@ import (
 	"fmt"
 	"runtime"
 	"slices"
+	"strings"
 	"sync"
 
 	"broadline/linelists"
+	"broadline/opacity"
 	"broadline/opacity/fit"
 	"broadline/opacity/synth"
 	"broadline/physics"
@@ -307,4 +309,51 @@ func (b *Bench) KnockOutChoices() (symbols []string, zs []int) {
 		out = append(out, z)
 	}
 	return symbols, out
+}
+
+// Lineless lists the elements of model m's mixes (both zones) that have no
+// lines in the store, by Z: the model only counts their electrons, so any
+// absorption they would make is missing from it.
+func (b *Bench) Lineless(m Model) []string {
+	var mixes []opacity.Composition
+	for _, c := range []Composition{m.MassFractions, m.InnerMassFractions} {
+		if mix, err := c.Mix(); err == nil {
+			mixes = append(mixes, mix)
+		}
+	}
+	return LinelessIn(b.Store, mixes...)
+}
+
+// LinelessIn lists the elements of the mixes without lines in st, by Z.
+func LinelessIn(st *linelists.Store, mixes ...opacity.Composition) []string {
+	has := map[int]bool{}
+	for _, sp := range st.SpeciesTable {
+		has[int(sp.Z)] = true
+	}
+	seen := map[int]bool{}
+	var zs []int
+	for _, mix := range mixes {
+		for _, z := range mix.Z {
+			if !has[z] && !seen[z] {
+				seen[z] = true
+				zs = append(zs, z)
+			}
+		}
+	}
+	slices.Sort(zs)
+	var out []string
+	for _, z := range zs {
+		out = append(out, ElementSymbol(z))
+	}
+	return out
+}
+
+// LinelessText is the workbench's and the commands' label for elements
+// without lines (see Bench.Lineless): "" when there are none.
+func LinelessText(symbols []string) string {
+	if len(symbols) == 0 {
+		return ""
+	}
+	return "No lines in the line lists (they only supply electrons; their absorption is missing from the model): " +
+		strings.Join(symbols, ", ")
 }

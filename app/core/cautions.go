@@ -17,7 +17,8 @@ const ModelCautions = `## What the model assumes
 - **Pure resonance scattering.** A scattered photon leaves at the wavelength it came in with;
   fluorescence and thermal emission in lines are ignored.
 - **Homologous expansion** with a power-law density and a composition that is the same at every
-  velocity.
+  velocity, or two zones (an inner core and the rest) with a sharp boundary, which the model
+  resolves only to the spacing of its velocity nodes. Real ejecta mix their components.
 - **Incomplete atomic data.** The model knows only the lines and levels in the lists you load.
   Theoretical lists for heavy elements are incomplete, and their wavelengths can be off by
   per cent; partition functions built from a line list alone are lower bounds.

@@ -95,12 +95,14 @@ func (c Composition) Mix() (opacity.Composition, error) {
 // compositions as strings).
 func (c Composition) MarshalText() ([]byte, error) { return []byte(c.text), nil }
 
-// UnmarshalText parses b as ParseComposition does; the error names the
-// key, mass_fractions, under which files keep a composition.
+// UnmarshalText parses b as ParseComposition does; the error quotes the
+// text at fault (files keep compositions under mass_fractions and
+// inner_mass_fractions, and encoding/json does not say which key a text
+// value came from).
 func (c *Composition) UnmarshalText(b []byte) error {
 	v, err := ParseComposition(string(b))
 	if err != nil {
-		return fmt.Errorf("mass_fractions: %w", err)
+		return fmt.Errorf("mass fractions %q: %w", b, err)
 	}
 	*c = v
 	return nil

@@ -31,14 +31,18 @@ type Dataset struct {
 	LineFiles      []string    `json:"line_files"`
 	LevelFiles     []string    `json:"level_files,omitempty"`
 	MassFractions  Composition `json:"mass_fractions"`
-	EjectaMass     float64     `json:"ejecta_mass_msun"`
-	InnerVelocity  float64     `json:"inner_velocity_c"`
-	OuterVelocity  float64     `json:"outer_velocity_c"`
-	DensityIndex   float64     `json:"density_index"`
-	Diluted        bool        `json:"diluted_temperature,omitempty"`
-	ModelFromUm    float64     `json:"model_from_um"`
-	ModelToUm      float64     `json:"model_to_um"`
-	Epochs         []Epoch     `json:"epochs"`
+	// InnerMassFractions and ZoneBoundary (v/c), when given, start the
+	// models with an inner zone of that composition (see Model).
+	InnerMassFractions Composition `json:"inner_mass_fractions,omitzero"`
+	ZoneBoundary       float64     `json:"zone_boundary_c,omitzero"`
+	EjectaMass         float64     `json:"ejecta_mass_msun"`
+	InnerVelocity      float64     `json:"inner_velocity_c"`
+	OuterVelocity      float64     `json:"outer_velocity_c"`
+	DensityIndex       float64     `json:"density_index"`
+	Diluted            bool        `json:"diluted_temperature,omitempty"`
+	ModelFromUm        float64     `json:"model_from_um"`
+	ModelToUm          float64     `json:"model_to_um"`
+	Epochs             []Epoch     `json:"epochs"`
 }
 
 // Epoch is one observed spectrum of a dataset.
@@ -91,6 +95,9 @@ func (d *Dataset) Check() error {
 		return fmt.Errorf("model_from_um %g, model_to_um %g: want 0 < from < to, at most a factor 1000 apart", d.ModelFromUm, d.ModelToUm)
 	case d.MassFractions.IsZero():
 		return fmt.Errorf("mass_fractions: give the element mix, e.g. \"Ca=0.4,Sr=0.3,Nd=0.3\"")
+	}
+	if err := d.StartModel(0).ValidateZone(d); err != nil {
+		return fmt.Errorf("inner_mass_fractions, zone_boundary_c: %w", err)
 	}
 	for i, e := range d.Epochs {
 		if e.File == "" {
@@ -165,9 +172,16 @@ func demoDataset() (*Dataset, *demogen.Scenario, error) {
 	if err != nil {
 		return nil, nil, err
 	}
+	var inner Composition
+	if sc.InnerMassFractions != "" {
+		if inner, err = ParseComposition(sc.InnerMassFractions); err != nil {
+			return nil, nil, err
+		}
+	}
 	d := &Dataset{
 		Object: sc.Object, Note: sc.Label, DistanceMpc: sc.DistanceMpc, ResolvingPower: sc.Instrument.ResolvingPower,
 		LineFiles: sc.LineFiles, LevelFiles: sc.LevelFiles, MassFractions: comp, EjectaMass: sc.EjectaMassSolar,
+		InnerMassFractions: inner, ZoneBoundary: sc.ZoneBoundary,
 		InnerVelocity: sc.InnerVelocity, OuterVelocity: sc.OuterVelocity, DensityIndex: sc.DensityIndex,
 		Diluted: sc.Diluted, ModelFromUm: sc.ModelFromUm, ModelToUm: sc.ModelToUm,
 	}

@@ -83,7 +83,9 @@ func TestDatasetFileErrors(t *testing.T) {
 	for name, c := range map[string]struct{ old, new, want string }{
 		"unknown key":    {`"object"`, `"objet"`, "objet"},
 		"distance":       {`"distance_mpc": 62`, `"distance_mpc": -1`, "distance_mpc"},
-		"composition":    {`"mass_fractions": "Ca=`, `"mass_fractions": "Qq=`, "mass_fractions"},
+		"composition":    {`"mass_fractions": "Ca=`, `"mass_fractions": "Qq=`, `mass fractions "Qq=`},
+		"inner zone":     {`"inner_mass_fractions": "Ca=`, `"inner_mass_fractions": "Ca=-`, `mass fractions "Ca=-`},
+		"zone boundary":  {`"zone_boundary_c": 0.16`, `"zone_boundary_c": 0.5`, "zone_boundary_c"},
 		"velocity order": {`"photosphere_velocity_c": 0.24`, `"photosphere_velocity_c": 0.4`, "epochs[1]"},
 		"temperature":    {`"temperature_k": 5000`, `"temperature_k": 50`, "temperature_k"},
 		"missing file":   {`"spectra/demo_epoch1.txt"`, `"spectra/nothing.txt"`, "nothing.txt"},

@@ -17,7 +17,8 @@ import (
 
 // FitRequest says what a fit of the bench's dataset frees and how it
 // samples. The composition of the model the fit starts from is shared by
-// every chosen epoch; each epoch has its own days (from the dataset),
+// every chosen epoch (with an inner zone, the outer mix is fitted and the
+// inner one held fixed); each epoch has its own days (from the dataset),
 // photosphere velocity and temperature (fixed unless freed) and flux scale
 // (always free, solved analytically).
 type FitRequest struct {
@@ -128,6 +129,7 @@ func (b *Bench) Problem(m Model, r FitRequest) (*fit.Problem, []int, error) {
 			em = m
 		}
 		em.Epoch, em.MassFractions, em.Preview = e, m.MassFractions, m.Preview
+		em.InnerMassFractions, em.ZoneBoundary = m.InnerMassFractions, m.ZoneBoundary
 		if err := em.Validate(b.Data); err != nil {
 			return nil, nil, fmt.Errorf("epoch %d: %w", e+1, err)
 		}
@@ -183,10 +185,17 @@ func (b *Bench) Fit(ctx context.Context, m Model, r FitRequest, progress func(st
 	if err != nil {
 		return nil, fmt.Errorf("best composition: %w", err)
 	}
+	if m.HasZone() {
+		note := fmt.Sprintf("the inner zone's mass fractions (inside %s) are held fixed: the fit frees the outer mix only", m.BoundaryText())
+		best.Warnings = append(best.Warnings, note)
+		if out.Posterior != nil {
+			out.Posterior.Warnings = append(out.Posterior.Warnings, note)
+		}
+	}
 	for i, e := range epochs {
 		ef := best.Epochs[i]
-		bm := Model{Epoch: e, PhotosphereVelocity: ef.PhotosphereVelocityC, Temperature: ef.TemperatureK,
-			MassFractions: comp, Preview: m.Preview}
+		bm := m
+		bm.Epoch, bm.PhotosphereVelocity, bm.Temperature, bm.MassFractions = e, ef.PhotosphereVelocityC, ef.TemperatureK, comp
 		// A fitted value a hair outside the workbench's range (rounding
 		// in the bounded transform) is put back inside it.
 		bm.PhotosphereVelocity = math.Min(math.Max(bm.PhotosphereVelocity, MinVelocity), MaxVelocity(b.Data))

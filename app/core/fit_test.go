@@ -35,6 +35,9 @@ func injectedBench(t *testing.T, truth Composition, scales []float64) *Bench {
 	d.ModelFromUm, d.ModelToUm = 0.36, 0.7
 	d.Epochs = []Epoch{demo.Data.Epochs[0], demo.Data.Epochs[2]}
 	d.MassFractions = truth
+	// Uniform ejecta: the demo's lanthanide-rich inner zone would black
+	// out the absorption-only spectrum of the late epoch.
+	d.InnerMassFractions, d.ZoneBoundary = Composition{}, 0
 	var obs []*spectra.Spectrum
 	rng := rand.New(rand.NewPCG(11, 12))
 	for i := range d.Epochs {
@@ -252,5 +255,37 @@ func TestFitModelMatchesSynthModel(t *testing.T) {
 	}
 	if n < 500 || sum/float64(n) > 0.01 {
 		t.Errorf("mean |difference| %.4g σ over %d samples, want < 0.01 σ", sum/float64(n), n)
+	}
+}
+
+// TestFitKeepsInnerZone: a fit of a model with an inner zone frees the
+// outer mix, keeps the inner zone in every best model (so "Use best" does
+// not drop it) and says so in the warnings.
+func TestFitKeepsInnerZone(t *testing.T) {
+	if raceEnabled {
+		t.Skip("some 100 syntheses: run without the race detector (make test does)")
+	}
+	demo := demoBench(t)
+	d := *demo.Data
+	d.ModelToUm = 0.7
+	b, err := NewBench("zoned", &d, demo.Observed, demo.Store, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := d.StartModel(2)
+	m.Preview = true
+	if !m.HasZone() {
+		t.Fatal("the demo's late epoch has no inner zone")
+	}
+	out, err := b.Fit(context.Background(), m, FitRequest{Free: []string{"Sr"}}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	bm := out.Models[0]
+	if bm.InnerMassFractions != m.InnerMassFractions || bm.ZoneBoundary != m.ZoneBoundary || bm.MassFractions == m.MassFractions {
+		t.Errorf("best model %+v from %+v: want the zone kept and the outer mix fitted", bm, m)
+	}
+	if !strings.Contains(strings.Join(out.Best.Warnings, " "), "inner zone") {
+		t.Errorf("warnings %q do not say the inner zone was held fixed", out.Best.Warnings)
 	}
 }

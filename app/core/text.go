@@ -46,7 +46,23 @@ func (d *Dataset) CaptionTail() []string { return []string{d.Label(), Cautions} 
 
 // Caption is the caption line of model m under label in a figure.
 func (m Model) Caption(label string) string {
+	if m.HasZone() {
+		return fmt.Sprintf("%s: v_ph = %.3f c, T = %.0f K, mass fractions above %.3f c %s; inside %s",
+			label, m.PhotosphereVelocity, m.Temperature, m.ZoneBoundary, m.MassFractions.Text(), m.InnerMassFractions.Text())
+	}
 	return fmt.Sprintf("%s: v_ph = %.3f c, T = %.0f K, mass fractions %s", label, m.PhotosphereVelocity, m.Temperature, m.MassFractions.Text())
+}
+
+// ZoneText says which zone of model m the photosphere lies in, for the
+// workbench's status line: "" for uniform ejecta.
+func (m Model) ZoneText() string {
+	switch {
+	case !m.HasZone():
+		return ""
+	case m.PhotosphereVelocity <= m.ZoneBoundary:
+		return fmt.Sprintf("photosphere inside the inner zone (below %.3f c): lines from both zones", m.ZoneBoundary)
+	}
+	return fmt.Sprintf("photosphere above the inner zone (%.3f c): only the outer mix forms lines", m.ZoneBoundary)
 }
 
 // FirstSentence returns s up to and including its first full stop.

@@ -54,16 +54,23 @@ type workbench struct {
 	temp      *widget.Slider
 	tempLabel *widget.Label
 	fractions *widget.Entry
-	applyBtn  *widget.Button
-	preview   *widget.Check
-	status    *widget.Label
-	busy      *widget.ProgressBarInfinite
-	progress  *widget.ProgressBar // of a sweep or a comparison
-	cancelBtn *widget.Button
-	candList  *widget.List
-	figure    *canvas.Image
-	features  *widget.Table
-	featRows  []spectra.Feature
+	// innerFractions and boundary set the inner zone (empty: uniform
+	// ejecta); zoneLabel says where the photosphere is, lineless names the
+	// elements without lines.
+	innerFractions *widget.Entry
+	boundary       *widget.Entry
+	zoneLabel      *widget.Label
+	lineless       *widget.Label
+	applyBtn       *widget.Button
+	preview        *widget.Check
+	status         *widget.Label
+	busy           *widget.ProgressBarInfinite
+	progress       *widget.ProgressBar // of a sweep or a comparison
+	cancelBtn      *widget.Button
+	candList       *widget.List
+	figure         *canvas.Image
+	features       *widget.Table
+	featRows       []spectra.Feature
 	// featAttr holds the model's identification of each feature, for the
 	// model that was shown when Identify was pressed; nil until then.
 	featAttr []*synth.Attribution
@@ -158,6 +165,17 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.fractions = widget.NewMultiLineEntry()
 	wb.fractions.Wrapping = fyne.TextWrapWord
 	wb.fractions.SetMinRowsVisible(3)
+	wb.innerFractions = widget.NewMultiLineEntry()
+	wb.innerFractions.Wrapping = fyne.TextWrapWord
+	wb.innerFractions.SetMinRowsVisible(2)
+	wb.innerFractions.SetPlaceHolder("empty: the same mix at every velocity")
+	wb.boundary = widget.NewEntry()
+	wb.boundary.SetPlaceHolder("e.g. 0.16c or 48000km/s")
+	wb.zoneLabel = widget.NewLabel("")
+	wb.zoneLabel.Wrapping = fyne.TextWrapWord
+	wb.lineless = widget.NewLabel("")
+	wb.lineless.Wrapping = fyne.TextWrapWord
+	wb.lineless.TextStyle = fyne.TextStyle{Italic: true}
 	apply := widget.NewButton("Apply composition", func() { wb.applyComposition() })
 	wb.applyBtn = apply
 	fitBtn := widget.NewButton("Fit the composition…", func() { wb.fitDialog() })
@@ -212,7 +230,10 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 		widget.NewLabelWithStyle("Epoch", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.epoch,
 		widget.NewLabelWithStyle("Photosphere velocity", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.velocity, wb.velLabel, sweep,
 		widget.NewLabelWithStyle("Photosphere temperature", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.temp, wb.tempLabel, sweepT,
-		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions, apply, fitBtn,
+		widget.NewLabelWithStyle("Mass fractions", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), wb.fractions,
+		widget.NewLabel("Inner zone: its own mass fractions, up to the boundary"), wb.innerFractions,
+		container.NewBorder(nil, nil, widget.NewLabel("boundary"), nil, wb.boundary), wb.zoneLabel,
+		apply, fitBtn, wb.lineless,
 		wb.preview, reset,
 		widget.NewSeparator(),
 		widget.NewLabelWithStyle("Candidates", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), keep, candScroll,
@@ -316,6 +337,8 @@ func (wb *workbench) syncControls() {
 	wb.velocity.SetValue(wb.sess.PhotosphereVelocity)
 	wb.temp.SetValue(wb.sess.Temperature)
 	wb.fractions.SetText(wb.sess.MassFractions.String())
+	wb.innerFractions.SetText(wb.sess.InnerMassFractions.String())
+	wb.boundary.SetText(wb.sess.BoundaryText())
 	wb.preview.SetChecked(wb.sess.Preview)
 	wb.unitSel.SetSelected(core.UnitOf(wb.sess.WavelengthUnit).Name)
 	wb.showValues()
@@ -323,6 +346,7 @@ func (wb *workbench) syncControls() {
 
 func (wb *workbench) showValues() {
 	wb.velLabel.SetText(fmt.Sprintf("%.3f c  (%.0f km/s)", wb.sess.PhotosphereVelocity, wb.sess.PhotosphereVelocity*physics.SpeedOfLightKmS))
+	wb.showComposition() // the photosphere may have crossed the zone boundary
 	wb.tempLabel.SetText(fmt.Sprintf("%.0f K", wb.sess.Temperature))
 }
 
@@ -489,17 +513,33 @@ func knockOutChoices(b *core.Bench) ([]string, map[string]int) {
 	return opts, zs
 }
 
-// applyComposition takes the composition entry into the session, or says
-// what is wrong with it and changes nothing.
+// applyComposition takes the composition entries (the mix, the inner
+// zone's mix and its boundary) into the session, or says what is wrong
+// with them and changes nothing.
 func (wb *workbench) applyComposition() {
-	c, err := core.ParseComposition(wb.fractions.Text)
+	m, err := wb.sess.Model.WithCompositions(wb.bench.Data, wb.fractions.Text, wb.innerFractions.Text, wb.boundary.Text)
 	if err != nil {
 		wb.status.SetText("mass fractions not applied: " + err.Error())
 		return
 	}
-	wb.sess.MassFractions = c
-	wb.fractions.SetText(c.String())
+	wb.sess.Model = m
+	wb.fractions.SetText(m.MassFractions.String())
+	wb.innerFractions.SetText(m.InnerMassFractions.String())
+	wb.boundary.SetText(m.BoundaryText())
+	wb.showComposition()
 	wb.recompute()
+}
+
+// showComposition sets the labels under the composition entries: where the
+// photosphere lies with respect to the inner zone, and which elements have
+// no lines.
+func (wb *workbench) showComposition() {
+	z := wb.sess.ZoneText()
+	if z == "" {
+		z = "uniform ejecta: one mix at every velocity"
+	}
+	wb.zoneLabel.SetText(z)
+	wb.lineless.SetText(core.LinelessText(wb.bench.Lineless(wb.sess.Model)))
 }
 
 // finish shows a computation's result, unless a newer one has been asked

@@ -192,8 +192,12 @@ func (wb *workbench) candidateText(i int) string {
 		return ""
 	}
 	c := wb.sess.Candidates[i]
+	mix := c.MassFractions.Text()
+	if c.HasZone() {
+		mix = fmt.Sprintf("%s; inside %.3f c: %s", mix, c.ZoneBoundary, c.InnerMassFractions.Text())
+	}
 	return fmt.Sprintf("%s · %g d · %.3f c · %.0f K · %s", c.Label, wb.bench.Data.Epochs[c.Epoch].Days,
-		c.PhotosphereVelocity, c.Temperature, c.MassFractions.Text())
+		c.PhotosphereVelocity, c.Temperature, mix)
 }
 
 // showCandidate makes candidate i the current model.

@@ -64,6 +64,27 @@ type Stage struct {
 	// LogGFMean and LogGFSigma are the mean and spread at 5000 Å of the
 	// normal distribution log gf is drawn from (see demoLines).
 	LogGFMean, LogGFSigma float64
+	// Arrays are low-lying excited configurations whose lines from the
+	// lowest levels fall in the near-infrared (see Array).
+	Arrays []Array
+}
+
+// Array is an invented transition array: an excited configuration of the
+// parity opposite to the ground's, Levels levels within ±Spread eV of
+// Energy, and Lines lines to it from the levels of the ground's parity
+// below LowerMax eV (the ground configuration). Because the lower levels
+// lie close together and the upper ones too, the lines cluster around
+// λ ≈ hc/Energy; an open-f-shell ion has several such arrays within the
+// first couple of eV, which is what makes lanthanide-rich matter opaque in
+// the near-infrared (the pattern of published theoretical lists, from
+// memory; the numbers are invented).
+type Array struct {
+	Energy, Spread float64 // eV
+	Levels, Lines  int
+	LowerMax       float64 // eV
+	// LogGFShift is added to the stage's mean log gf for the array's
+	// lines (their spread is the stage's).
+	LogGFShift float64
 }
 
 // Plan returns the elements of the demo line lists. The file names are
@@ -91,10 +112,16 @@ func Plan() []Element {
 		return Element{Symbol: sym, File: "demo_" + strings.ToLower(sym), Stages: st}
 	}
 	d := func(charge uint8, levels, lines int, gap, cross float64) Stage {
-		return Stage{charge, levels, lines, gap, cross, 2.2, 4, 0, lgLight, sdLight}
+		return Stage{charge, levels, lines, gap, cross, 2.2, 4, 0, lgLight, sdLight, nil}
 	}
-	f := func(charge uint8, levels, lines int, gap, cross float64) Stage {
-		return Stage{charge, levels, lines, gap, cross, 10, 8, 2, lgLan, sdLan}
+	f := func(charge uint8, levels, lines int, gap, cross float64, arrays ...Array) Stage {
+		return Stage{charge, levels, lines, gap, cross, 10, 8, 2, lgLan, sdLan, arrays}
+	}
+	// A near-infrared transition array from the ground configuration's
+	// levels below 0.1 eV.
+	const irShift = -2.0
+	ir := func(energy, spread float64, levels, lines int) Array {
+		return Array{Energy: energy, Spread: spread, Levels: levels, Lines: lines, LowerMax: 0.1, LogGFShift: irShift}
 	}
 	return []Element{
 		{Symbol: "Ca", File: "demo_ca"}, // the real Ca II lines only
@@ -104,9 +131,11 @@ func Plan() []Element {
 		// falls in the window: levels only (they count in the partition
 		// function).
 		el("Zr", d(0, 110, 200, 0, 1.8), d(1, 110, 300, 0, 3.0), d(2, 40, 0, 0, 7.5)),
-		el("Ce", f(0, 900, 20000, 0, 1.0), f(1, 1200, 45000, 0, 1.2), f(2, 500, 12000, 0, 1.1)),
-		el("Nd", f(0, 1200, 25000, 0, 1.0), f(1, 1800, 65000, 0, 1.5), f(2, 700, 20000, 0, 1.7)),
-		el("Sm", f(0, 1200, 25000, 0, 1.2), f(1, 1700, 60000, 0, 1.3), f(2, 600, 15000, 0, 2.0)),
+		el("Ce", f(0, 900, 20000, 0, 1.0), f(1, 1200, 45000, 0, 1.2, ir(1.30, 0.04, 200, 700)), f(2, 500, 12000, 0, 1.1)),
+		el("Nd", f(0, 1200, 25000, 0, 1.0),
+			f(1, 1800, 65000, 0, 1.5, ir(1.10, 0.04, 200, 700), ir(0.80, 0.04, 200, 700), ir(0.60, 0.03, 150, 500)),
+			f(2, 700, 20000, 0, 1.7)),
+		el("Sm", f(0, 1200, 25000, 0, 1.2), f(1, 1700, 60000, 0, 1.3, ir(1.45, 0.04, 200, 700)), f(2, 600, 15000, 0, 2.0)),
 		el("Eu", f(0, 400, 8000, 1.6, 1.6), f(1, 700, 22000, 1.2, 2.7), f(2, 400, 8000, 0.3, 2.5)),
 	}
 }
@@ -177,6 +206,18 @@ func Lines(el Element, seed uint64) (*linelists.Store, error) {
 		}
 		for _, l := range demoLines(rng, sp, st, levels) {
 			b.Add(l)
+		}
+		// Each array draws from its own stream, so adding one leaves the
+		// other lines of the ion as they were.
+		for k, a := range st.Arrays {
+			arng := rand.New(rand.NewPCG(seed, uint64(e.Z)<<8|uint64(st.Charge)|uint64(k+1)<<16))
+			upper, lines := arrayLines(arng, sp, st, a, levels)
+			for _, l := range upper {
+				b.AddLevel(sp, l.e, l.g)
+			}
+			for _, l := range lines {
+				b.Add(l)
+			}
 		}
 	}
 	for _, rl := range realLines {
@@ -328,6 +369,68 @@ func demoLines(rng *rand.Rand, sp linelists.Species, st Stage, levels []demoLeve
 		})
 	}
 	return out
+}
+
+// arrayLines invents array a of an ion with level set levels: its upper
+// levels (energies uniform within ±Spread of Energy, rounded to 1e-4 eV,
+// none at the energy of another level) and its lines from the levels of the
+// ground's parity below LowerMax, by the electric-dipole rules of
+// demoLines, lower and upper level drawn uniformly, wavelengths kept in
+// 3500–25000 Å, log gf as in demoLines.
+func arrayLines(rng *rand.Rand, sp linelists.Species, st Stage, a Array, levels []demoLevel) ([]demoLevel, []linelists.Line) {
+	half := (int(sp.Z)-int(sp.Charge))%2 == 1
+	// One level per energy, so that no two lines from one lower level share
+	// a wavelength.
+	taken := map[float64]bool{}
+	for _, l := range levels {
+		taken[l.e] = true
+	}
+	var upper []demoLevel
+	for tries := 0; len(upper) < a.Levels && tries < 50*a.Levels; tries++ {
+		e := math.Round((a.Energy+a.Spread*(2*rng.Float64()-1))*1e4) / 1e4
+		j := float64(rng.IntN(int(st.JMax) + 1))
+		if half {
+			j += 0.5
+		}
+		g := float32(2*j + 1)
+		if e <= 0 || taken[e] {
+			continue
+		}
+		taken[e] = true
+		upper = append(upper, demoLevel{e, g, true})
+	}
+	var lower []demoLevel
+	for _, l := range levels {
+		if !l.odd && l.e <= a.LowerMax {
+			lower = append(lower, l)
+		}
+	}
+	if len(lower) == 0 || len(upper) == 0 {
+		return upper, nil
+	}
+	type pair struct{ lo, up int }
+	used := map[pair]bool{}
+	var out []linelists.Line
+	for tries := 0; len(out) < a.Lines && tries < 50*a.Lines; tries++ {
+		lo, up := rng.IntN(len(lower)), rng.IntN(len(upper))
+		l, u := lower[lo], upper[up]
+		if math.Abs(float64(u.g-l.g)) > 2 || l.g == 1 && u.g == 1 || used[pair{lo, up}] || u.e <= l.e {
+			continue
+		}
+		w := hcEVAngstrom / (u.e - l.e)
+		if w < demoMinWavelength || w > demoMaxWavelength {
+			continue
+		}
+		used[pair{lo, up}] = true
+		lgf := st.LogGFMean + a.LogGFShift + st.LogGFSigma*rng.NormFloat64() + math.Log10(demoGFWavelength/w)
+		lgf = math.Round(math.Max(-7, math.Min(0.9, lgf))*1e3) / 1e3
+		out = append(out, linelists.Line{
+			Wavelength: math.Round(w*1e4) / 1e4, LogGF: lgf, Species: sp,
+			LowerEnergy: l.e, LowerG: l.g,
+			HasUpper: true, UpperEnergy: u.e, UpperG: u.g,
+		})
+	}
+	return upper, out
 }
 
 // Comments is the header every demo file starts with.

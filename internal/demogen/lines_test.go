@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -138,11 +139,15 @@ func TestDemoStatistics(t *testing.T) {
 	if e1.Wavelength[100] == e3.Wavelength[100] {
 		t.Error("different seeds, same list")
 	}
-	lgf := make([]float64, a.Len())
-	for i := range lgf {
-		lgf[i] = float64(a.LogGF[i]) - math.Log10(demoGFWavelength/a.Wavelength[i])
+	// The lines of the transition arrays have their own mean (checked in
+	// TestDemoArrays): leave them out here.
+	var lgf []float64
+	for i := range a.Len() {
 		if w := a.Wavelength[i]; w < 3500 || w > 25000 {
 			t.Fatalf("line %d at %v Å", i, w)
+		}
+		if arrayOf(el, a, i) < 0 {
+			lgf = append(lgf, float64(a.LogGF[i])-math.Log10(demoGFWavelength/a.Wavelength[i]))
 		}
 	}
 	mean, sd := stat.MeanStdDev(lgf, nil)
@@ -233,5 +238,92 @@ func checkComplexity(t *testing.T, count map[string]int, zr, nd *linelists.Store
 	}
 	if w := reddest(nd); w < 20000 {
 		t.Errorf("Nd: strong low-level lines reach only %.0f Å, want beyond 2 µm", w)
+	}
+}
+
+// arrayOf returns the index of the transition array of el that line i of
+// store s belongs to (lower level below the array's LowerMax, upper level
+// within its band), or −1; it counts the arrays of all stages in order.
+func arrayOf(el Element, s *linelists.Store, i int) int {
+	sp := s.SpeciesTable[s.Species[i]]
+	k := 0
+	for _, st := range el.Stages {
+		for _, a := range st.Arrays {
+			if st.Charge == sp.Charge {
+				lo := s.Levels.Energy[s.Lower[i]]
+				up := lo + hcEVAngstrom/s.Wavelength[i]
+				if lo <= a.LowerMax+1e-9 && math.Abs(up-a.Energy) <= a.Spread+1e-3 {
+					return k
+				}
+			}
+			k++
+		}
+	}
+	return -1
+}
+
+// TestDemoArrays checks the near-infrared transition arrays of the demo's
+// Nd II (see Array): each has most of the lines the plan asks for (the
+// dipole rules and the few lower levels allow fewer), they fall within
+// hc/(Energy + Spread) … hc/(Energy − Spread − LowerMax), their log gf
+// minus the log10(5000 Å/λ) trend has the stage's mean plus LogGFShift and
+// the stage's σ, and the lines of the arrays make up the bulk of the Nd II
+// lines from levels below 0.1 eV beyond 1 µm.
+func TestDemoArrays(t *testing.T) {
+	el := Plan()[5]
+	if el.Symbol != "Nd" {
+		t.Fatalf("plan order changed: %v", el.Symbol)
+	}
+	s, err := Lines(el, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var arrays []Array
+	var stage Stage
+	for _, st := range el.Stages {
+		if len(st.Arrays) > 0 {
+			arrays, stage = append(arrays, st.Arrays...), st
+		}
+	}
+	if len(arrays) < 2 {
+		t.Fatalf("Nd has %d near-infrared arrays, want ≥ 2", len(arrays))
+	}
+	lgf := make([][]float64, len(arrays))
+	lowIR, inArrays := 0, 0
+	for i := range s.Len() {
+		k := arrayOf(el, s, i)
+		w := s.Wavelength[i]
+		if s.SpeciesTable[s.Species[i]].Charge == stage.Charge && s.Levels.Energy[s.Lower[i]] <= 0.1 && w > 10000 {
+			lowIR++
+			if k >= 0 {
+				inArrays++
+			}
+		}
+		if k < 0 {
+			continue
+		}
+		a := arrays[k]
+		if w < hcEVAngstrom/(a.Energy+a.Spread)-1 || w > hcEVAngstrom/(a.Energy-a.Spread-a.LowerMax)+1 {
+			t.Fatalf("array %d line at %.1f Å outside its band", k, w)
+		}
+		lgf[k] = append(lgf[k], float64(s.LogGF[i])-math.Log10(demoGFWavelength/w))
+	}
+	for k, a := range arrays {
+		if n := len(lgf[k]); n < a.Lines/2 {
+			t.Errorf("array %d: %d lines, plan %d", k, n, a.Lines)
+		}
+		// The clipping at log gf = −7 takes ~15 % of the lower tail here,
+		// so compare the median and the interquartile range (σ = IQR/1.349
+		// for a normal distribution), which it leaves alone.
+		slices.Sort(lgf[k])
+		med := stat.Quantile(0.5, stat.Empirical, lgf[k], nil)
+		sd := (stat.Quantile(0.75, stat.Empirical, lgf[k], nil) - stat.Quantile(0.25, stat.Empirical, lgf[k], nil)) / 1.349
+		if !scalar.EqualWithinAbs(med, stage.LogGFMean+a.LogGFShift, 0.15) || !scalar.EqualWithinAbs(sd, stage.LogGFSigma, 0.15) {
+			t.Errorf("array %d: log gf median %.3f σ %.3f, want ≈ %.3f and ≈ %.3f", k, med, sd, stage.LogGFMean+a.LogGFShift, stage.LogGFSigma)
+		}
+	}
+	t.Logf("Nd II lines from below 0.1 eV beyond 1 µm: %d, of them in the arrays %d", lowIR, inArrays)
+	if inArrays < lowIR*3/4 {
+		t.Errorf("only %d of %d low-level near-infrared Nd II lines are in the arrays", inArrays, lowIR)
 	}
 }

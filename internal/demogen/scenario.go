@@ -31,13 +31,19 @@ type Scenario struct {
 	// to the scenario file's directory.
 	LineFiles  []string `json:"line_files"`
 	LevelFiles []string `json:"level_files,omitempty"`
-	// MassFractions is the composition as opacity.ParseComposition reads it.
-	MassFractions   string  `json:"mass_fractions"`
-	EjectaMassSolar float64 `json:"ejecta_mass_msun"`
-	InnerVelocity   float64 `json:"inner_velocity_c"`
-	OuterVelocity   float64 `json:"outer_velocity_c"`
-	DensityIndex    float64 `json:"density_index"`
-	Diluted         bool    `json:"diluted_temperature"`
+	// MassFractions is the composition as opacity.ParseComposition reads it:
+	// of the whole ejecta, or, with InnerMassFractions, of the ejecta
+	// outside the inner zone.
+	MassFractions string `json:"mass_fractions"`
+	// InnerMassFractions, when not empty, is the composition of the inner
+	// zone, from the centre up to ZoneBoundary (v/c): stratified ejecta.
+	InnerMassFractions string  `json:"inner_mass_fractions,omitempty"`
+	ZoneBoundary       float64 `json:"zone_boundary_c,omitempty"`
+	EjectaMassSolar    float64 `json:"ejecta_mass_msun"`
+	InnerVelocity      float64 `json:"inner_velocity_c"`
+	OuterVelocity      float64 `json:"outer_velocity_c"`
+	DensityIndex       float64 `json:"density_index"`
+	Diluted            bool    `json:"diluted_temperature"`
 	// ModelFromUm and ModelToUm are the model's vacuum wavelength range.
 	ModelFromUm float64 `json:"model_from_um"`
 	ModelToUm   float64 `json:"model_to_um"`
@@ -98,6 +104,17 @@ func (s *Scenario) Validate() error {
 	if _, err := opacity.ParseComposition(s.MassFractions); err != nil {
 		return fmt.Errorf("synth: scenario: %w", err)
 	}
+	if (s.InnerMassFractions == "") != (s.ZoneBoundary == 0) {
+		return fmt.Errorf("synth: scenario: inner_mass_fractions and zone_boundary_c go together")
+	}
+	if s.InnerMassFractions != "" {
+		if _, err := opacity.ParseComposition(s.InnerMassFractions); err != nil {
+			return fmt.Errorf("synth: scenario: inner_mass_fractions: %w", err)
+		}
+		if !(s.ZoneBoundary > 0 && s.ZoneBoundary < 1) {
+			return fmt.Errorf("synth: scenario: zone_boundary_c %g must lie between 0 and 1", s.ZoneBoundary)
+		}
+	}
 	if len(s.LineFiles) == 0 || len(s.Epochs) == 0 {
 		return fmt.Errorf("synth: scenario: needs line files and at least one epoch")
 	}
@@ -139,14 +156,20 @@ func (s *Scenario) Composition() opacity.Composition {
 	return c
 }
 
-// Ejecta returns the ejecta of epoch i.
+// Ejecta returns the ejecta of epoch i, with the inner zone if the
+// scenario has one.
 func (s *Scenario) Ejecta(i int) synth.Ejecta {
 	e := s.Epochs[i]
-	return synth.Ejecta{
+	ej := synth.Ejecta{
 		Time: e.Days * physics.Day, Mass: s.EjectaMassSolar * physics.SolarMass,
 		BetaIn: s.InnerVelocity, BetaPh: e.PhotosphereVelocity, BetaMax: s.OuterVelocity,
 		DensityIndex: s.DensityIndex, Temperature: e.Temperature, Diluted: s.Diluted,
 	}
+	if s.InnerMassFractions != "" {
+		c, _ := opacity.ParseComposition(s.InnerMassFractions) // checked by Validate
+		ej.Zones = []synth.Zone{{Inner: 0, Outer: s.ZoneBoundary, Composition: c}}
+	}
+	return ej
 }
 
 // Pixels returns the instrument's pixel wavelengths in Å, before any range

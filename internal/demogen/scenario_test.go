@@ -3,12 +3,15 @@ package demogen
 import (
 	"bytes"
 	"context"
+	"math"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 
 	"broadline/linelists"
 	"broadline/opacity"
+	"broadline/opacity/synth"
 	"broadline/physics"
 )
 
@@ -185,4 +188,99 @@ func demoScenario(t *testing.T) (*Scenario, []byte) {
 		t.Fatal(err)
 	}
 	return sc, raw
+}
+
+// TestDemoNearInfraredKnockOut pins what the demo is for (issue 13): on the
+// last epoch, whose photosphere lies in the lanthanide-rich inner zone,
+// removing the lines of the main lanthanide (Nd) changes the normalised
+// flux F/F_c, at the instrument's resolving power, by at least 20 % over a
+// stretch of at least 0.1 µm within 1.0–2.4 µm, in at least two separate
+// near-infrared features; on the first epoch, which sees only the
+// lanthanide-poor outer zone, the same knock-out moves F/F_c there by less
+// than 10 % (its few Nd II lines from the lowest levels still show a little).
+func TestDemoNearInfraredKnockOut(t *testing.T) {
+	t.Parallel()
+	if testing.Short() {
+		t.Skip("synthesises the demo")
+	}
+	sc, _ := demoScenario(t)
+	if sc.InnerMassFractions == "" {
+		t.Fatal("the demo has no inner zone")
+	}
+	inner, err := opacity.ParseComposition(sc.InnerMassFractions)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The main lanthanide of the inner zone.
+	nd, best := 0, 0.0
+	for i, z := range inner.Z {
+		if z >= 57 && z <= 71 && inner.MassFraction[i] > best {
+			nd, best = z, inner.MassFraction[i]
+		}
+	}
+	if nd != 60 {
+		t.Fatalf("main lanthanide Z=%d, want Nd", nd)
+	}
+	st, _, err := sc.LoadStore(os.DirFS("../../app/demo"), "spectra")
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := sc.NewModel(st)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var wave []float64
+	for l := 10000.0; l <= 24000; l += 10 {
+		wave = append(wave, l)
+	}
+	// change returns |F_without/F − 1| at wave for epoch i.
+	change := func(i int) []float64 {
+		ej := sc.Ejecta(i)
+		var norm [2][]float64
+		for k, without := range [][]int{nil, {nd}} {
+			r, err := m.Spectrum(context.Background(), sc.Composition(), ej, synth.Settings{Without: without, Workers: 2})
+			if err != nil {
+				t.Fatal(err)
+			}
+			_, n, err := r.Observe(sc.Instrument.ResolvingPower, wave)
+			if err != nil {
+				t.Fatal(err)
+			}
+			norm[k] = n
+		}
+		out := make([]float64, len(wave))
+		for j := range wave {
+			out[j] = math.Abs(norm[1][j]/norm[0][j] - 1)
+		}
+		return out
+	}
+	late := change(len(sc.Epochs) - 1)
+	var runs [][2]float64 // stretches with a change ≥ 20 %, Å
+	start := -1
+	for j := range wave {
+		in := late[j] >= 0.2
+		if in && start < 0 {
+			start = j
+		}
+		if start >= 0 && (!in || j == len(wave)-1) {
+			runs = append(runs, [2]float64{wave[start], wave[j-1]})
+			start = -1
+		}
+	}
+	long := 0
+	for _, r := range runs {
+		t.Logf("Nd knock-out changes F/F_c by ≥ 20 %% over %.3f–%.3f µm", r[0]/1e4, r[1]/1e4)
+		if r[1]-r[0] >= 1000 {
+			long++
+		}
+	}
+	if long < 2 {
+		t.Errorf("last epoch: %d stretches of ≥ 0.1 µm where removing Nd changes F/F_c by ≥ 20 %% (%v), want ≥ 2", long, runs)
+	}
+	early := change(0)
+	j := slices.Index(early, slices.Max(early))
+	t.Logf("first epoch: removing Nd changes F/F_c by at most %.3g (at %.3f µm)", early[j], wave[j]/1e4)
+	if early[j] >= 0.1 {
+		t.Errorf("first epoch: removing Nd changes F/F_c in 1.0–2.4 µm by up to %.3g at %.3f µm, want < 10 %% (the outer zone is lanthanide-poor)", early[j], wave[j]/1e4)
+	}
 }

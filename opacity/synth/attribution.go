@@ -19,8 +19,9 @@ type KnockOut struct {
 	Result *Result
 }
 
-// KnockOuts returns, for every element of comp in order of Z, the spectrum
-// with that element's lines removed (the plasma is solved once, with every
+// KnockOuts returns, for every element of comp (and of the zones of ej
+// that reach into the envelope) in order of Z, the spectrum with that
+// element's lines removed everywhere (the plasma is solved once, with every
 // element present, and shared). The elements are computed in parallel on
 // set.Workers goroutines, each integral serially; results are in Z order and
 // do not depend on the number of workers.
@@ -29,19 +30,20 @@ func (m *Model) KnockOuts(ctx context.Context, comp opacity.Composition, ej Ejec
 	if err != nil {
 		return nil, err
 	}
-	out := make([]KnockOut, len(comp.Z))
-	errs := make([]error, len(comp.Z))
+	zs := s.elements
+	out := make([]KnockOut, len(zs))
+	errs := make([]error, len(zs))
 	one := set
 	one.Workers = 1
 	run := func(i int) {
-		z := comp.Z[i]
+		z := zs[i]
 		t := s.tau(m, func(sp linelists.Species) bool { return int(sp.Z) == z })
 		r, err := m.integrateState(ctx, s, t, ej, one)
 		e, _ := linelists.ElementByZ(z)
 		out[i] = KnockOut{Z: z, Symbol: e.Symbol, Result: r}
 		errs[i] = err
 	}
-	forEach(len(comp.Z), set.Workers, run)
+	forEach(len(zs), set.Workers, run)
 	for _, err := range errs {
 		if err != nil {
 			return nil, err
@@ -154,7 +156,8 @@ func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejec
 		return w, nil
 	}
 	// Index i < n: without element i; n ≤ i < 2n: element i−n alone; 2n: all.
-	n := len(comp.Z)
+	zs := s.elements
+	n := len(zs)
 	ews := make([]float64, 2*n+1)
 	errs := make([]error, 2*n+1)
 	forEach(2*n+1, set.Workers, func(i int) {
@@ -162,10 +165,10 @@ func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejec
 		case i == 2*n:
 			ews[i], errs[i] = ew(nil)
 		case i < n:
-			z := comp.Z[i]
+			z := zs[i]
 			ews[i], errs[i] = ew(func(sp linelists.Species) bool { return int(sp.Z) == z })
 		default:
-			z := comp.Z[i-n]
+			z := zs[i-n]
 			ews[i], errs[i] = ew(func(sp linelists.Species) bool { return int(sp.Z) != z })
 		}
 	})
@@ -176,7 +179,7 @@ func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejec
 	}
 	a := &Attribution{From: from, To: to, Absorbed: ews[2*n]}
 	sum := 0.0
-	for i, z := range comp.Z {
+	for i, z := range zs {
 		e, _ := linelists.ElementByZ(z)
 		a.Elements = append(a.Elements, ElementShare{Z: z, Symbol: e.Symbol,
 			Alone: ews[n+i], KnockOut: max(0, ews[2*n]-ews[i])})

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 
+	"broadline/opacity"
 	"broadline/physics"
 )
 
@@ -16,7 +17,12 @@ import (
 // so a uniform sphere (n = 0, v_in = 0) has ρ = 3M/(4π (v_max t)³). The
 // photosphere sits at BetaPh inside the range; lines form between BetaPh and
 // BetaMax, so moving the photosphere leaves ρ(v) unchanged. The composition
-// is uniform in velocity.
+// is the one passed with the ejecta to Model.Spectrum, except inside the
+// velocity ranges of Zones, where each zone's own composition holds
+// (stratified ejecta: e.g. a lanthanide-rich inner zone inside a
+// lanthanide-poor outer one). The density law is that of the whole ejecta
+// either way; a zone changes what the matter is made of, not how much
+// there is.
 type Ejecta struct {
 	Time         float64 // time since explosion, s
 	Mass         float64 // total ejecta mass, g
@@ -30,6 +36,64 @@ type Ejecta struct {
 	// T(r) = W(r)^{1/4} T_ph (radiative equilibrium with a diluted
 	// blackbody); false means T(r) = T_ph throughout the envelope.
 	Diluted bool
+	// Zones are velocity ranges with their own composition; nil means the
+	// composition is uniform. They must not overlap.
+	Zones []Zone
+}
+
+// Zone is a shell of the ejecta, Inner ≤ v/c ≤ Outer, with its own
+// composition. Outer may be +Inf (the zone reaches the outer edge,
+// whatever BetaMax is). A velocity node on the boundary between two zones
+// belongs to the outer one.
+//
+// The plasma is solved and the optical depths tabulated at the envelope's
+// velocity nodes and interpolated linearly between them, so a zone
+// boundary inside the envelope is resolved to the node spacing
+// (BetaMax − BetaPh)/(Nodes − 1): the change of composition is spread over
+// one node interval.
+type Zone struct {
+	Inner, Outer float64 // velocity range, v/c
+	Composition  opacity.Composition
+}
+
+// maxZones bounds the zones of one ejecta model.
+const maxZones = 64
+
+// validateZones checks that the zones are well formed and do not overlap.
+func (e Ejecta) validateZones() error {
+	if len(e.Zones) > maxZones {
+		return fmt.Errorf("synth: %d composition zones (at most %d)", len(e.Zones), maxZones)
+	}
+	for i, z := range e.Zones {
+		switch {
+		case !(z.Inner >= 0) || !(z.Outer > z.Inner):
+			return fmt.Errorf("synth: zone %d: velocity range %g–%g c must have 0 ≤ inner < outer", i+1, z.Inner, z.Outer)
+		case len(z.Composition.Z) == 0 || len(z.Composition.Z) != len(z.Composition.MassFraction):
+			return fmt.Errorf("synth: zone %d (%g–%g c): no composition", i+1, z.Inner, z.Outer)
+		}
+		for j, o := range e.Zones[:i] {
+			if z.Inner < o.Outer && o.Inner < z.Outer {
+				return fmt.Errorf("synth: zones %d (%g–%g c) and %d (%g–%g c) overlap", j+1, o.Inner, o.Outer, i+1, z.Inner, z.Outer)
+			}
+		}
+	}
+	return nil
+}
+
+// CompositionAt returns the composition at velocity beta (v/c): that of
+// the zone holding beta (the outer one on a shared boundary), or base
+// where no zone does.
+func (e Ejecta) CompositionAt(beta float64, base opacity.Composition) opacity.Composition {
+	best := -1
+	for i, z := range e.Zones {
+		if beta >= z.Inner && beta <= z.Outer && (best < 0 || z.Inner > e.Zones[best].Inner) {
+			best = i
+		}
+	}
+	if best < 0 {
+		return base
+	}
+	return e.Zones[best].Composition
 }
 
 // Validate reports whether the parameters describe valid ejecta.
@@ -52,7 +116,7 @@ func (e Ejecta) Validate() error {
 	case e.DensityIndex >= 3 && e.BetaIn == 0:
 		return fmt.Errorf("synth: density index %g ≥ 3 needs an inner velocity above 0 (the mass would diverge)", e.DensityIndex)
 	}
-	return nil
+	return e.validateZones()
 }
 
 // massIntegral returns ∫ β^{2−n} dβ from BetaIn to BetaMax.

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"sync"
 
@@ -282,6 +283,9 @@ type state struct {
 	elemZ   []int
 	scale   float64 // (π e²/mₑc) · 1e-8 · t
 	species []linelists.Species
+	// elements are the elements (Z, ascending) of the compositions at the
+	// nodes: the composition passed in, or its zones' where they hold.
+	elements []int
 }
 
 // prepare solves the plasma at each node and fetches the binned strengths.
@@ -306,10 +310,18 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 	s := &state{env: env, lo: lo, hi: hi, scale: physics.ClassicalLineCrossSection * physics.Angstrom * ej.Time,
 		species: m.store.SpeciesTable}
 	part := m.partitionFunc()
+	seen := map[int]bool{}
 	for k := range nodes {
 		beta := env.Node(k)
 		T := ej.TemperatureAt(beta)
-		p, err := opacity.Solve(comp, ej.Density(beta), T, part)
+		c := ej.CompositionAt(beta, comp)
+		for _, z := range c.Z {
+			if !seen[z] {
+				seen[z] = true
+				s.elements = append(s.elements, z)
+			}
+		}
+		p, err := opacity.Solve(c, ej.Density(beta), T, part)
 		if err != nil {
 			return nil, fmt.Errorf("synth: plasma at %.4g c: %w", beta, err)
 		}
@@ -329,8 +341,9 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 		}
 		s.stim = append(s.stim, st)
 	}
+	slices.Sort(s.elements)
 	if ej.Diluted {
-		if err := m.binByElement(ctx, s, comp, ej, set.Workers); err != nil {
+		if err := m.binByElement(ctx, s, ej, set.Workers); err != nil {
 			return nil, err
 		}
 	}
@@ -342,17 +355,18 @@ func (m *Model) prepare(ctx context.Context, comp opacity.Composition, ej Ejecta
 const rangeBeta = 0.5
 
 // binByElement fills s.elem for a temperature that varies from node to node
-// (the diluted law): per node and per element of comp, the summed
+// (the diluted law): per node and per element of s.elements, the summed
 // (N_ion/U) g f λ e^{−E/kT} of its lines in each bin. Each node needs its own
 // Boltzmann factors, so these tables depend on the composition and are not
 // cached; grouping by element rather than species keeps them small. Nodes are
 // computed in parallel, each in line order.
-func (m *Model) binByElement(ctx context.Context, s *state, comp opacity.Composition, ej Ejecta, workers int) error {
+func (m *Model) binByElement(ctx context.Context, s *state, ej Ejecta, workers int) error {
 	st := m.store
-	elem := make([]int, len(st.SpeciesTable)) // species → index in comp.Z, or −1
+	zs := s.elements
+	elem := make([]int, len(st.SpeciesTable)) // species → index in zs, or −1
 	for i, sp := range st.SpeciesTable {
 		elem[i] = -1
-		for e, z := range comp.Z {
+		for e, z := range zs {
 			if int(sp.Z) == z {
 				elem[i] = e
 			}
@@ -360,7 +374,7 @@ func (m *Model) binByElement(ctx context.Context, s *state, comp opacity.Composi
 	}
 	nb := s.hi - s.lo
 	first, last := searchIdx(m.gidx, int32(s.lo)), searchIdx(m.gidx, int32(s.hi))
-	s.elemZ = comp.Z
+	s.elemZ = zs
 	s.elem = make([][]float64, s.env.Nodes)
 	forEach(s.env.Nodes, workers, func(k int) {
 		if ctx.Err() != nil {
@@ -368,7 +382,7 @@ func (m *Model) binByElement(ctx context.Context, s *state, comp opacity.Composi
 		}
 		boltz := opacity.BoltzmannFactors(nil, st, ej.TemperatureAt(s.env.Node(k)))
 		sf := s.sf[k]
-		S := make([]float64, len(comp.Z)*nb)
+		S := make([]float64, len(zs)*nb)
 		gidx, gfl, sp, lower := m.gidx, m.gfl, st.Species, st.Lower
 		for l := first; l < last; l++ {
 			e := elem[sp[l]]
@@ -460,14 +474,26 @@ func (m *Model) warnings(s *state) []string {
 	if len(s.plasma) == 0 {
 		return nil
 	}
-	p := s.plasma[0]
 	has := map[int]bool{}
 	for _, sp := range m.store.SpeciesTable {
 		has[int(sp.Z)] = true
 	}
+	// The elements of every node, in node order (stratified ejecta have
+	// different ones in different zones), each once; partition functions are
+	// judged at the first node that has the element.
+	var elems []opacity.ElementState
+	seen := map[int]bool{}
+	for _, p := range s.plasma {
+		for _, e := range p.Elements {
+			if !seen[e.Z] {
+				seen[e.Z] = true
+				elems = append(elems, e)
+			}
+		}
+	}
 	var out []string
 	var lower, lineless []string
-	for _, e := range p.Elements {
+	for _, e := range elems {
 		el, _ := linelists.ElementByZ(e.Z)
 		if !has[e.Z] {
 			lineless = append(lineless, el.Symbol)
@@ -495,9 +521,11 @@ func (m *Model) warnings(s *state) []string {
 	return out
 }
 
-// Spectrum returns the spectrum of ejecta ej with composition comp: the LTE
+// Spectrum returns the spectrum of ejecta ej with composition comp (or, in
+// the velocity ranges of ej.Zones, each zone's composition): the LTE
 // plasma is solved at each velocity node (density from the ejecta law,
-// temperature uniform or diluted), every line's Sobolev optical depth
+// temperature uniform or diluted, the composition of the zone the node
+// lies in), every line's Sobolev optical depth
 //
 //	τ = (π e²/mₑc) g f λ t (N_ion/U) e^{−E_l/kT} (1 − e^{−hc/λkT})
 //

@@ -28,9 +28,14 @@ func (e Envelope) Validate() error {
 	return nil
 }
 
-// Node returns the velocity (fraction of c) of node s.
+// Node returns the velocity (fraction of c) of node s. The last node is
+// BetaMax exactly (the formula could round a hair above it, where the
+// density law ends).
 func (e Envelope) Node(s int) float64 {
-	return e.BetaPh + (e.BetaMax-e.BetaPh)*float64(s)/float64(e.Nodes-1)
+	if s >= e.Nodes-1 {
+		return e.BetaMax
+	}
+	return min(e.BetaPh+(e.BetaMax-e.BetaPh)*float64(s)/float64(e.Nodes-1), e.BetaMax)
 }
 
 // locate returns the node below beta and the fraction of the way to the next.

@@ -49,18 +49,23 @@ func demoScenario() *demogen.Scenario {
 	return &demogen.Scenario{
 		Label: "INVENTED DEMONSTRATION DATA: a fictional event, an invented distance, invented epochs, " +
 			"invented line lists and an invented spectrograph. Not an observation; do not use for science. " +
-			"The composition is that of an invented lanthanide-poor (blue) component: Sr 3 %, Y and Zr below it, " +
-			"lanthanides 1.5e-4 in all, a little Ca. Se, Br, Kr, Rb, Te and Xe (80 % of the mass) have no demo " +
-			"line list; their low ions have (nearly) closed p shells and few lines from levels populated at a few " +
-			"thousand K, so leaving them out is a fair demo approximation. Mo, Ru and Pd (16 %) also have no demo " +
-			"list, though their real ions have lines like Zr's: the demo's opacity is incomplete there, as real " +
-			"atomic data are.",
+			"The ejecta have two invented zones: outside 0.16 c a lanthanide-poor (blue) mix, Sr 3 %, Y and Zr " +
+			"below it, lanthanides 1.5e-4 in all, a little Ca; inside 0.16 c a lanthanide-rich (red) mix, " +
+			"lanthanides 2.4 % (Nd 2 %), Sr 1.5 %. The first two epochs see only the outer zone; by the third the " +
+			"photosphere has receded into the inner one, whose Nd II lines make the near-infrared bumps. " +
+			"Se, Br, Kr, Rb, Te and Xe (80 % of the outer mass) have no demo line list; their low ions have " +
+			"(nearly) closed p shells and few lines from levels populated at a few thousand K, so leaving them out " +
+			"is a fair demo approximation. Mo, Ru and Pd (16 %) also have no demo list, though their real ions " +
+			"have lines like Zr's: the demo's opacity is incomplete there, as real atomic data are.",
 		Object:      "DEMO-1 (invented)",
 		DistanceMpc: 62,
 		LineFiles:   lines,
 		LevelFiles:  levels,
 		MassFractions: "Ca=0.002,Sr=0.03,Y=0.002,Zr=0.008,Ce=4e-5,Nd=7e-5,Sm=2.5e-5,Eu=1.5e-5," +
 			"Se=0.25,Br=0.04,Kr=0.25,Rb=0.05,Mo=0.05,Ru=0.06,Pd=0.05,Te=0.13,Xe=0.07785",
+		InnerMassFractions: "Ca=0.0005,Sr=0.015,Y=0.002,Zr=0.006,Ce=0.002,Nd=0.02,Sm=0.0015,Eu=0.0005," +
+			"Se=0.12,Br=0.02,Kr=0.12,Rb=0.025,Mo=0.05,Ru=0.08,Pd=0.07,Te=0.2,Xe=0.2675",
+		ZoneBoundary:    0.16,
 		EjectaMassSolar: 0.025,
 		InnerVelocity:   0.05,
 		OuterVelocity:   0.35,

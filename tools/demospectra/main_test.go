@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"math"
 	"os"
 	"path/filepath"
@@ -33,8 +34,14 @@ func loadDemo(t *testing.T) *demogen.Scenario {
 func TestScenarioRecorded(t *testing.T) {
 	sc := loadDemo(t)
 	want := demoScenario()
-	if sc.MassFractions != want.MassFractions || sc.DistanceMpc != want.DistanceMpc || len(sc.Epochs) != len(want.Epochs) {
+	if sc.MassFractions != want.MassFractions || sc.InnerMassFractions != want.InnerMassFractions ||
+		sc.ZoneBoundary != want.ZoneBoundary || sc.DistanceMpc != want.DistanceMpc || len(sc.Epochs) != len(want.Epochs) {
 		t.Fatalf("scenario.json differs from demoScenario(); run go run ./tools/demospectra")
+	}
+	a, _ := json.Marshal(sc)
+	b, _ := json.Marshal(want)
+	if !bytes.Equal(a, b) {
+		t.Errorf("scenario.json differs from demoScenario() (label, instrument or another key); run go run ./tools/demospectra")
 	}
 	for i := range sc.Epochs {
 		if sc.Epochs[i] != want.Epochs[i] {
