@@ -502,7 +502,7 @@ func roleOf(base string) int {
 		return roleVar
 	case has("err", "unc", "sigma", "noise", "stddev", "std_dev") || b == "sig" || b == "e_flux" || b == "eflux" || b == "dflux":
 		return roleUnc
-	case pre("mask", "flag", "qual", "bad", "dq") || isGoodMaskName(b):
+	case pre("mask", "flag", "qual", "bad", "dq") || strings.HasSuffix(b, "_mask") || isGoodMaskName(b):
 		return roleMask
 	case pre("wave", "wavelength", "lambda", "lam", "wl", "awav", "vwav", "wav", "loglam") || isLogWaveName(b):
 		return roleWave
