@@ -48,7 +48,8 @@ func ReadFile(path string, opt ReadOptions) (*Spectrum, error) {
 	head := make([]byte, 9)
 	n, _ := io.ReadFull(f, head)
 	if _, err := f.Seek(0, io.SeekStart); err != nil {
-		return nil, fmt.Errorf("spectra: %w", err)
+		// A pipe: read what was sniffed, then the rest.
+		return Read(io.MultiReader(bytes.NewReader(head[:n]), f), opt)
 	}
 	switch {
 	case string(head[:n]) == "SIMPLE  =":

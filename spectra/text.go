@@ -119,6 +119,7 @@ type textReader struct {
 	iu, im   int
 	uncRole  int
 	maskGood bool
+	maskName string
 	waveLog  bool
 	comma    bool
 	fields   [][]byte
@@ -575,6 +576,7 @@ func (t *textReader) setColumns(names []string) error {
 		}
 		if t.im >= 0 {
 			t.rep.Mask, t.rep.MaskConvention = "column "+strconv.Quote(names[t.im]), maskConventionName(t.maskGood)
+			t.maskName = names[t.im]
 		}
 		return nil
 	}
@@ -749,6 +751,7 @@ func (t *textReader) row(s []byte) error {
 		}
 		if t.im >= 0 {
 			t.rep.Mask, t.rep.MaskConvention = fmt.Sprintf("column %d", t.im+1), maskConventionName(t.maskGood)
+			t.maskName = t.rep.Mask
 		}
 	}
 	if len(f) != t.ncol {
@@ -915,7 +918,7 @@ func (t *textReader) finish() (*Spectrum, error) {
 		for i, v := range t.mask {
 			if maskBad(v, t.maskGood) {
 				s.SetMask(i, MaskFile)
-				rep.flag(strings.TrimPrefix(rep.Mask, "column "), v)
+				rep.flag(t.maskName, v)
 				nbad++
 			}
 		}

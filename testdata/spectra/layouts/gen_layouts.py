@@ -303,7 +303,21 @@ open("implausible_range.txt", "w").write("wavelength_A,flux\n0.5,1\n0.6,2\n0.7,3
 case("implausible_range.txt", wave_A=[0.5, 0.6, 0.7], medium="vacuum", flux_unit="arbitrary",
      flux=[1.0, 2.0, 3.0], unc=None, warning_has="outside 0.1–30 µm")
 
+# 15. Unit strings and what astropy.units makes of them: the factor to
+#     erg s-1 cm-2 Angstrom-1 (F_lambda), to erg s-1 cm-2 Hz-1 (F_nu) or to
+#     Angstrom (wavelengths).
+FNU = u.erg / u.s / u.cm**2 / u.Hz
+unit_refs = []
+for s in ["erg/s/cm2/Angstrom", "1e-17 erg/s/cm2/Angstrom", "Angstrom-1 cm-2 erg s-1", "erg / (Angstrom cm2 s)",
+          "W m-2 um-1", "W/m2/nm", "10**(-17) erg/s/cm2/Angstrom", "10**-16 erg.s**-1.cm**-2.Angstrom**-1",
+          "erg s^-1 cm^-2 Angstrom^-1", "J/(s m2 Angstrom)", "mW m-2 nm-1", "1e-19 W / (m2 nm)"]:
+    unit_refs.append({"unit": s, "kind": "flam", "factor": factor(s, FLAM)})
+for s in ["Jy", "mJy", "uJy", "erg/s/cm2/Hz", "W m-2 Hz-1", "1e-20 erg s^-1 cm^-2 Hz^-1", "Hz-1 cm-2 erg s-1"]:
+    unit_refs.append({"unit": s, "kind": "fnu", "factor": factor(s, FNU)})
+for s in ["Angstrom", "nm", "um", "micron", "m", "cm", "mm", "0.1 nm"]:
+    unit_refs.append({"unit": s, "kind": "wave", "factor": factor(s, u.AA)})
+
 with open("expected.json", "w") as f:
     json.dump({"generator": "astropy " + __import__("astropy").__version__ + ", numpy " + np.__version__,
-               "cases": cases}, f, indent=1)
+               "cases": cases, "units": unit_refs}, f, indent=1)
 print("wrote", len(cases), "cases")
