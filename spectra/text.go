@@ -337,7 +337,8 @@ func (t *textReader) comment(c string) {
 		return
 	}
 	num := func(dst *float64) {
-		x, err := strconv.ParseFloat(strings.Fields(v + " ")[0], 64)
+		first, _, _ := strings.Cut(strings.TrimSpace(v)+" ", " ")
+		x, err := strconv.ParseFloat(first, 64)
 		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
 			t.rep.warnf("line %d: metadata %q = %s is not a number: ignored", t.line, clip(k, 40), short([]byte(v)))
 			t.meta.Extra[k] = v
