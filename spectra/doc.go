@@ -49,8 +49,12 @@
 // methods):
 //
 //	Read, ReadFile, ReadText, ReadFITS (io.Reader + ReadOptions) → *Spectrum
+//	  (gzip/bzip2 recognised by content); Meta.Read is the *ReadReport of
+//	  what was used and assumed
+//	ParseFluxUnitScale, ParseWaveScale: the unit grammar (unitparse.go)
 //	*ParseError{File, Line, Column, HDU, Offset, Err}; sentinels ErrSyntax,
-//	  ErrColumns, ErrOrder, ErrNoData, ErrUnsupported, ErrMalformed, ErrTooLarge
+//	  ErrColumns, ErrOrder, ErrNoData, ErrUnsupported, ErrMalformed,
+//	  ErrTooLarge, ErrAmbiguous
 //	(*Spectrum).ConvertFlux, ToRestFrame, Deredden, Extinction (CCM89, F99),
 //	  MaskTelluric (air wavelengths are converted on reading with
 //	  physics.AirToVacuumAll)

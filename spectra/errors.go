@@ -25,6 +25,11 @@ var (
 	ErrMalformed = errors.New("malformed")
 	// ErrTooLarge: a line or a declared size exceeds the reader's bound.
 	ErrTooLarge = errors.New("too large")
+	// ErrAmbiguous: the file can be read in more than one way and the
+	// reader will not guess (an epoch that looks like an MJD, a table of
+	// overlapping segments, a multi-band image without labels); the
+	// message says which option decides.
+	ErrAmbiguous = errors.New("ambiguous")
 )
 
 // ParseError reports bad input: where it is and what was wrong. Line and

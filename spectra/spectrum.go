@@ -110,6 +110,9 @@ type Metadata struct {
 	History []string `json:"history,omitempty"`
 	// Extra holds free key/value pairs, for instance every FITS header card.
 	Extra map[string]string `json:"extra,omitempty"`
+	// Read is what the reader used and assumed (nil for a spectrum not
+	// read from a file).
+	Read *ReadReport `json:"read,omitempty"`
 }
 
 // New returns a spectrum built from the given slices, which it keeps (does
@@ -267,6 +270,7 @@ func (s *Spectrum) Clone() *Spectrum {
 		c.Mask = append([]MaskReason(nil), s.Mask...)
 	}
 	c.Meta.History = append([]string(nil), s.Meta.History...)
+	c.Meta.Read = s.Meta.Read.Clone()
 	if s.Meta.Extra != nil {
 		c.Meta.Extra = make(map[string]string, len(s.Meta.Extra))
 		for k, v := range s.Meta.Extra {

@@ -25,41 +25,80 @@ const (
 	roleUnc
 	roleIvar // inverse variance, converted to σ = 1/√ivar
 	roleMask
+	roleVar // variance, converted to σ = √var
 )
 
 // ReadText reads a spectrum from a plain-text table: one sample per line,
-// fields separated by commas or by white space (tabs, spaces).
+// fields separated by commas or by white space (tabs, spaces). A gzip- or
+// bzip2-compressed input is decompressed first.
 //
 //   - Blank lines and comment lines (starting with '#', '%' or ';') are
 //     skipped and counted. A comment of the form "key = value" or
 //     "key: value" is metadata: object, date, exptime (s), airmass, epoch
-//     (days since explosion), wave_unit, flux_unit and medium (air or
-//     vacuum) are understood; other keys go to Meta.Extra.
+//     (days since explosion), mjd (of the observation), wave_unit,
+//     flux_unit and medium (air or vacuum) are understood; other keys go to
+//     Meta.Extra. A value that cannot be read is a warning in the report,
+//     not an error.
+//   - An ECSV file (first line "# %ECSV") takes its column units, its
+//     delimiter and its metadata from the YAML header.
 //   - A header row (first non-comment line that does not start with a
 //     number, or the last comment line before the data if it names the
 //     columns) names the columns and may carry units: "wavelength_um",
 //     "wave (nm)", "flux [mJy]", "flux_err". Columns are found by name:
-//     wavelength (wave, lambda, wl, awav = air), flux, uncertainty (err,
-//     unc, sigma, noise; ivar for inverse variance) and a mask (mask, flag,
-//     quality; non-zero = bad, masked with MaskFile).
+//     wavelength (wave, lambda, wl, awav = air; loglam = log10 Å), flux (the
+//     calibrated one when there are several), uncertainty (err, unc,
+//     sigma, noise; var for variance, ivar for inverse variance) and a mask
+//     (mask, flag, quality: non-zero = bad; good, valid: 1 = good).
 //   - Without a header there must be 2 or 3 columns: wavelength, flux and
 //     optionally the uncertainty.
+//   - Missing values (NA, N/A, null, an empty field, nan, -nan) in flux or
+//     uncertainty are kept as NaN and flagged invalid; a row without a
+//     wavelength cannot be placed and is left out, counted and reported.
 //
 // Wavelengths must be strictly ascending or strictly descending; a
-// descending table is reversed. Non-numeric values are an error naming the
-// line and column; "nan" or "inf" fluxes are kept and masked as invalid.
-// Options override what the file says.
+// descending table is reversed. Other non-numeric values are an error
+// naming the line and column. An epoch that looks like an MJD (> 30000) is
+// refused (ErrAmbiguous) unless opt.Days or opt.ExplosionMJD says how to
+// read it. Options override what the file says; Meta.Read reports what
+// was used and assumed.
 func ReadText(r io.Reader, opt ReadOptions) (*Spectrum, error) {
-	tr := &textReader{opt: opt, br: bufio.NewReaderSize(r, maxTextLine)}
+	br := bufio.NewReaderSize(r, maxTextLine)
+	u, comp, err := unwrap(br, &opt)
+	if err != nil {
+		return nil, err
+	}
+	return readText(u, comp, opt)
+}
+
+func readText(r io.Reader, comp string, opt ReadOptions) (*Spectrum, error) {
+	br, ok := r.(*bufio.Reader)
+	if !ok || br.Size() < maxTextLine {
+		br = bufio.NewReaderSize(r, maxTextLine)
+	}
+	rep := newReport("text")
+	rep.Compression = comp
+	head, _ := br.Peek(4096)
+	if bytes.HasPrefix(head, []byte("SIMPLE  =")) {
+		return nil, &ParseError{File: opt.Name, HDU: -1, Err: causef(ErrUnsupported, "this is a FITS file, not a text table: read it with Read or ReadFile")}
+	}
+	if c := compression(head); c != "" && comp != "" {
+		return nil, &ParseError{File: opt.Name, HDU: -1, Err: causef(ErrUnsupported, "compressed twice (%s inside %s): decompress it first", c, comp)}
+	}
+	if h := binaryHint(head); h != "" {
+		return nil, &ParseError{File: opt.Name, HDU: -1, Err: causef(ErrUnsupported, "not a text table: %s", h)}
+	}
+	tr := &textReader{opt: opt, br: br, rep: rep}
 	return tr.read()
 }
 
 type textReader struct {
 	opt  ReadOptions
 	br   *bufio.Reader
+	rep  *ReadReport
 	line int
 
 	meta         Metadata
+	mjd          float64
 	waveUnit     string // from the file
 	fluxUnit     string
 	mediumText   string
@@ -67,19 +106,29 @@ type textReader struct {
 	commentLines int
 	blankLines   int
 
+	ecsv      bool              // an ECSV header
+	ecsvDone  bool              // past its YAML header
+	ecsvUnits map[string]string // column name → unit
+	ecsvSect  string            // current top-level YAML key
+	ecsvCol   string            // the datatype entry being read
+	ecsvDelim string
+
 	header   []string // column names, nil without a header
-	roles    []int
 	ncol     int
 	iw, ifl  int
 	iu, im   int
 	uncRole  int
+	maskGood bool
+	maskName string
+	waveLog  bool
 	comma    bool
 	fields   [][]byte
 	fieldCol []int
 
 	wave, flux, unc []float64
-	mask            []bool
+	mask            []float64
 	dir             int // +1 ascending, -1 descending, 0 unknown
+	skippedLines    []int
 }
 
 func (t *textReader) errf(col int, sentinel error, format string, args ...any) error {
@@ -111,7 +160,11 @@ func (t *textReader) read() (*Spectrum, error) {
 		}
 	}
 	if len(t.wave) == 0 {
-		return nil, &ParseError{File: t.opt.Name, Line: t.line, HDU: -1, Err: causef(ErrNoData, "no data rows (%d comment and %d blank lines)", t.commentLines, t.blankLines)}
+		what := ""
+		if len(t.skippedLines) > 0 {
+			what = fmt.Sprintf(", %d rows without a wavelength", len(t.skippedLines))
+		}
+		return nil, &ParseError{File: t.opt.Name, Line: t.line, HDU: -1, Err: causef(ErrNoData, "no data rows (%d comment and %d blank lines%s)", t.commentLines, t.blankLines, what)}
 	}
 	return t.finish()
 }
@@ -121,6 +174,13 @@ func (t *textReader) handleLine(raw []byte, configured *bool) error {
 	s = bytes.TrimSpace(s)
 	if t.line == 1 {
 		s = bytes.TrimPrefix(s, []byte("\xef\xbb\xbf")) // UTF-8 byte-order mark
+		if bytes.HasPrefix(s, []byte("# %ECSV")) {
+			t.ecsv = true
+			t.rep.Format = "ECSV"
+			t.ecsvUnits = map[string]string{}
+			t.commentLines++
+			return nil
+		}
 	}
 	if len(s) == 0 {
 		t.blankLines++
@@ -128,24 +188,30 @@ func (t *textReader) handleLine(raw []byte, configured *bool) error {
 	}
 	if c := s[0]; c == '#' || c == '%' || c == ';' {
 		t.commentLines++
+		if t.ecsv && !t.ecsvDone {
+			t.ecsvLine(string(bytes.TrimPrefix(s[1:], []byte(" "))))
+			return nil
+		}
 		if !*configured {
-			return t.comment(string(bytes.TrimLeft(s, "#%; \t")))
+			t.comment(string(bytes.TrimLeft(s, "#%; \t")))
 		}
 		return nil
 	}
 	if !*configured {
 		*configured = true
+		if t.ecsv {
+			t.ecsvDone = true
+			t.comma = t.ecsvDelim == ","
+			return t.setColumns(t.headerFields(string(s)))
+		}
 		t.comma = bytes.IndexByte(s, ',') >= 0
 		first := ""
 		if f := t.split(s); len(f) > 0 {
 			first = string(f[0])
 		}
-		if _, err := strconv.ParseFloat(first, 64); err != nil {
+		if _, err := strconv.ParseFloat(first, 64); err != nil && !isMissing([]byte(first)) {
 			// A header row.
-			if err := t.setColumns(t.headerFields(string(s))); err != nil {
-				return err
-			}
-			return nil
+			return t.setColumns(t.headerFields(string(s)))
 		}
 		// Data first: maybe the last comment line named the columns.
 		if err := t.setColumnsFromComment(s); err != nil {
@@ -155,28 +221,130 @@ func (t *textReader) handleLine(raw []byte, configured *bool) error {
 	return t.row(s)
 }
 
-// comment handles a comment line before the data.
-func (t *textReader) comment(c string) error {
+// ecsvLine reads one line of an ECSV YAML header (the subset astropy
+// writes: datatype entries with name and unit, the delimiter, and flat
+// meta entries).
+func (t *textReader) ecsvLine(l string) {
+	if strings.TrimSpace(l) == "---" || strings.TrimSpace(l) == "" {
+		return
+	}
+	indent := len(l) - len(strings.TrimLeft(l, " "))
+	body := strings.TrimSpace(l)
+	if indent == 0 && !strings.HasPrefix(body, "-") {
+		k, v, _ := strings.Cut(body, ":")
+		t.ecsvSect = strings.TrimSpace(k)
+		v = yamlUnquote(v)
+		if t.ecsvSect == "delimiter" {
+			t.ecsvDelim = v
+		}
+		return
+	}
+	entry := strings.HasPrefix(body, "- ")
+	body = strings.TrimPrefix(body, "- ")
+	var kv [][2]string
+	if strings.HasPrefix(body, "{") && strings.HasSuffix(body, "}") {
+		for _, part := range splitFlow(body[1 : len(body)-1]) {
+			k, v, ok := strings.Cut(part, ":")
+			if ok {
+				kv = append(kv, [2]string{strings.TrimSpace(k), yamlUnquote(v)})
+			}
+		}
+	} else if k, v, ok := strings.Cut(body, ":"); ok {
+		kv = append(kv, [2]string{strings.TrimSpace(k), yamlUnquote(v)})
+	}
+	switch t.ecsvSect {
+	case "datatype":
+		if entry {
+			t.ecsvCol = ""
+		}
+		var unit string
+		for _, p := range kv {
+			switch p[0] {
+			case "name":
+				t.ecsvCol = p[1]
+			case "unit":
+				unit = p[1]
+			}
+		}
+		if unit != "" && t.ecsvCol != "" {
+			t.ecsvUnits[t.ecsvCol] = unit
+		} else if unit != "" {
+			t.ecsvUnits["\x00pending"] = unit
+		}
+		if t.ecsvCol != "" {
+			if u, ok := t.ecsvUnits["\x00pending"]; ok {
+				t.ecsvUnits[t.ecsvCol] = u
+				delete(t.ecsvUnits, "\x00pending")
+			}
+		}
+	case "meta":
+		for _, p := range kv {
+			if p[1] != "" && !strings.HasPrefix(p[1], "!!") {
+				t.comment(p[0] + " = " + p[1])
+			}
+		}
+	}
+}
+
+// splitFlow splits the inside of a YAML flow mapping at commas outside
+// quotes.
+func splitFlow(s string) []string {
+	var out []string
+	q := byte(0)
+	start := 0
+	for i := 0; i < len(s); i++ {
+		switch c := s[i]; {
+		case q != 0 && c == q:
+			q = 0
+		case q == 0 && (c == '\'' || c == '"'):
+			q = c
+		case q == 0 && c == ',':
+			out = append(out, s[start:i])
+			start = i + 1
+		}
+	}
+	return append(out, s[start:])
+}
+
+func yamlUnquote(v string) string {
+	v = strings.TrimSpace(v)
+	if len(v) >= 2 && (v[0] == '\'' && v[len(v)-1] == '\'') {
+		return strings.ReplaceAll(v[1:len(v)-1], "''", "'")
+	}
+	if len(v) >= 2 && v[0] == '"' && v[len(v)-1] == '"' {
+		if u, err := strconv.Unquote(v); err == nil {
+			return u
+		}
+		return v[1 : len(v)-1]
+	}
+	return v
+}
+
+// comment handles a comment line before the data. A value it cannot read
+// is a warning.
+func (t *textReader) comment(c string) {
 	t.lastComment = c
 	k, v, ok := strings.Cut(c, "=")
 	if !ok {
 		k, v, ok = strings.Cut(c, ":")
 	}
 	if !ok {
-		return nil
+		return
 	}
 	k = strings.ToLower(strings.TrimSpace(k))
 	v = strings.Trim(strings.TrimSpace(v), `"'`)
 	if k == "" || strings.ContainsAny(k, " \t,") && !strings.HasPrefix(k, "wave") && !strings.HasPrefix(k, "flux") {
-		return nil
+		return
 	}
-	num := func(dst *float64) error {
-		x, err := strconv.ParseFloat(strings.Fields(v + " ")[0], 64)
+	num := func(dst *float64) {
+		first, _, _ := strings.Cut(strings.TrimSpace(v)+" ", " ")
+		x, err := strconv.ParseFloat(first, 64)
 		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return t.errf(0, ErrSyntax, "metadata %q: %q is not a number", k, v)
+			t.rep.warnf("line %d: metadata %q = %s is not a number: ignored", t.line, clip(k, 40), short([]byte(v)))
+			t.meta.Extra[k] = v
+			return
 		}
 		*dst = x
-		return nil
 	}
 	switch k {
 	case "object", "target", "name":
@@ -184,11 +352,13 @@ func (t *textReader) comment(c string) error {
 	case "date", "date-obs", "date_obs", "dateobs":
 		t.meta.Date = v
 	case "exptime", "exposure", "exposure_s", "exptime_s":
-		return num(&t.meta.Exposure)
+		num(&t.meta.Exposure)
 	case "airmass":
-		return num(&t.meta.Airmass)
-	case "epoch", "epoch_days", "phase", "time_since_explosion", "days_since_explosion":
-		return num(&t.meta.Epoch)
+		num(&t.meta.Airmass)
+	case "epoch", "epoch_days", "phase", "time_since_explosion", "days_since_explosion", "days":
+		num(&t.meta.Epoch)
+	case "mjd", "mjd-obs", "mjd_obs", "mjdobs":
+		num(&t.mjd)
 	case "wave_unit", "wavelength_unit", "wavelength unit", "waveunit", "wunit":
 		t.waveUnit = v
 	case "flux_unit", "flux unit", "fluxunit", "funit", "bunit":
@@ -198,7 +368,14 @@ func (t *textReader) comment(c string) error {
 	default:
 		t.meta.Extra[k] = v
 	}
-	return nil
+}
+
+// clip shortens s to at most n bytes for a message.
+func clip(s string, n int) string {
+	if len(s) > n {
+		return s[:n] + "…"
+	}
+	return s
 }
 
 // headerFields splits a header line into names, keeping bracketed units
@@ -323,11 +500,13 @@ func roleOf(base string) int {
 	switch {
 	case has("ivar", "inverse_var", "invvar"):
 		return roleIvar
+	case b == "var" || has("variance") || strings.HasSuffix(b, "_var") || strings.HasPrefix(b, "var_"):
+		return roleVar
 	case has("err", "unc", "sigma", "noise", "stddev", "std_dev") || b == "sig" || b == "e_flux" || b == "eflux" || b == "dflux":
 		return roleUnc
-	case pre("mask", "flag", "qual", "bad", "dq"):
+	case pre("mask", "flag", "qual", "bad", "dq") || strings.HasSuffix(b, "_mask") || isGoodMaskName(b):
 		return roleMask
-	case pre("wave", "wavelength", "lambda", "lam", "wl", "awav", "vwav", "wav", "loglam"):
+	case pre("wave", "wavelength", "lambda", "lam", "wl", "awav", "vwav", "wav", "loglam") || isLogWaveName(b):
 		return roleWave
 	case pre("flux", "f_lambda", "flam", "fnu", "f_nu", "fλ", "fν", "intensity", "spec", "counts") || b == "f":
 		return roleFlux
@@ -349,61 +528,76 @@ func choose(names []string, ncol int, choice, what string) (int, error) {
 			return i, nil
 		}
 	}
-	return 0, causef(ErrColumns, "no %s column named %q (columns: %s)", what, choice, strings.Join(names, ", "))
+	return 0, causef(ErrColumns, "no %s column named %q (columns: %s)", what, choice, clip(strings.Join(names, ", "), 200))
 }
 
 func (t *textReader) setColumns(names []string) error {
 	t.header = names
 	t.uncRole = roleUnc
-	var units []string
 	if names != nil {
-		t.roles, units = classify(names)
 		t.ncol = len(names)
-		for i, r := range t.roles {
-			switch {
-			case r == roleWave && t.iw < 0:
-				t.iw = i
-			case r == roleFlux && t.ifl < 0:
-				t.ifl = i
-			case (r == roleUnc || r == roleIvar) && t.iu < 0:
-				t.iu, t.uncRole = i, r
-			case r == roleMask && t.im < 0:
-				t.im = i
+		units := make([]string, len(names))
+		for i, n := range names {
+			if u, ok := t.ecsvUnits[n]; ok {
+				units[i] = u
 			}
 		}
-		// Unnamed leading columns fall back to position.
-		if t.iw < 0 && t.ncol >= 2 && t.roles[0] == roleNone {
-			t.iw = 0
+		c, err := chooseColumns(names, units, &t.opt, t.rep)
+		if err != nil {
+			return &ParseError{File: t.opt.Name, Line: t.line, HDU: -1, Err: err}
 		}
-		if t.ifl < 0 && t.ncol >= 2 && t.roles[1] == roleNone && t.iw != 1 {
-			t.ifl = 1
+		t.iw, t.ifl, t.iu, t.im, t.uncRole, t.maskGood, t.waveLog = c.wave, c.flux, c.unc, c.mask, c.uncKind, c.maskGood, c.waveLog
+		if t.iw < 0 || t.ifl < 0 {
+			return t.errf(0, ErrColumns, "header %s names no wavelength and flux columns; choose them by name or number", short([]byte(strings.Join(names, ","))))
 		}
+		if t.iw == t.ifl {
+			return t.errf(0, ErrColumns, "wavelength and flux are the same column")
+		}
+		if units[t.iw] != "" && t.waveUnit == "" {
+			t.waveUnit = units[t.iw]
+		}
+		if units[t.ifl] != "" && t.fluxUnit == "" {
+			t.fluxUnit = units[t.ifl]
+		}
+		if t.iu >= 0 && units[t.iu] != "" && t.fluxUnit != "" && t.uncRole == roleUnc && units[t.iu] != t.fluxUnit {
+			fu, fs, e1 := ParseFluxUnitScale(t.fluxUnit)
+			uu, us, e2 := ParseFluxUnitScale(units[t.iu])
+			if e1 != nil || e2 != nil || fu != uu || math.Abs(fs/us-1) > 1e-9 {
+				t.rep.warnf("uncertainty column %q is in %q but the flux in %q: taken as in the flux's unit", names[t.iu], units[t.iu], t.fluxUnit)
+			}
+		}
+		if strings.HasPrefix(strings.ToLower(names[t.iw]), "awav") || strings.Contains(strings.ToLower(names[t.iw]), "air") {
+			if t.mediumText == "" {
+				t.mediumText = "air"
+			}
+		}
+		t.rep.Wave, t.rep.Flux = "column "+strconv.Quote(names[t.iw]), "column "+strconv.Quote(names[t.ifl])
+		if t.iu >= 0 {
+			t.rep.Uncertainty, t.rep.UncertaintyKind = "column "+strconv.Quote(names[t.iu]), uncKindName(t.uncRole)
+		}
+		if t.im >= 0 {
+			t.rep.Mask, t.rep.MaskConvention = "column "+strconv.Quote(names[t.im]), maskConventionName(t.maskGood)
+			t.maskName = names[t.im]
+		}
+		return nil
 	}
-	// User choices override.
-	if names == nil && (t.opt.WaveColumn != "" || t.opt.FluxColumn != "" || t.opt.UncColumn != "") {
+	// No header: columns by position, or as the user chose by number.
+	if t.opt.WaveColumn != "" || t.opt.FluxColumn != "" || t.opt.UncColumn != "" || t.opt.MaskColumn != "" {
 		t.ncol = -1 // decided at the first row
 	}
 	pick := func(choice, what string, dst *int) error {
 		if choice == "" {
 			return nil
 		}
-		if strings.EqualFold(choice, "none") && what == "uncertainty" {
-			*dst = -1
+		if strings.EqualFold(choice, "none") && (what == "uncertainty" || what == "mask") {
+			*dst = -2 // none, and no positional default
 			return nil
 		}
-		if names == nil {
-			n, err := strconv.Atoi(choice)
-			if err != nil || n < 1 {
-				return t.errf(0, ErrColumns, "the file has no header row, so choose the %s column by number, not %q", what, choice)
-			}
-			*dst = n - 1
-			return nil
+		n, err := strconv.Atoi(choice)
+		if err != nil || n < 1 {
+			return t.errf(0, ErrColumns, "the file has no header row, so choose the %s column by number, not %s", what, short([]byte(choice)))
 		}
-		i, err := choose(names, t.ncol, choice, what)
-		if err != nil {
-			return &ParseError{File: t.opt.Name, Line: t.line, HDU: -1, Err: err}
-		}
-		*dst = i
+		*dst = n - 1
 		return nil
 	}
 	if err := pick(t.opt.WaveColumn, "wavelength", &t.iw); err != nil {
@@ -415,33 +609,19 @@ func (t *textReader) setColumns(names []string) error {
 	if err := pick(t.opt.UncColumn, "uncertainty", &t.iu); err != nil {
 		return err
 	}
-	if t.opt.UncColumn != "" && !strings.EqualFold(t.opt.UncColumn, "none") {
-		t.uncRole = roleUnc
+	if err := pick(t.opt.MaskColumn, "mask", &t.im); err != nil {
+		return err
 	}
-	if names != nil {
-		if t.iw < 0 || t.ifl < 0 {
-			return t.errf(0, ErrColumns, "header %q names no wavelength and flux columns; choose them by name or number", strings.Join(names, ","))
-		}
-		if t.iw == t.ifl {
-			return t.errf(0, ErrColumns, "wavelength and flux are the same column")
-		}
-		if units[t.iw] != "" && t.waveUnit == "" {
-			t.waveUnit = units[t.iw]
-		}
-		if units[t.ifl] != "" && t.fluxUnit == "" {
-			t.fluxUnit = units[t.ifl]
-		}
-		if strings.HasPrefix(strings.ToLower(names[t.iw]), "awav") || strings.Contains(strings.ToLower(names[t.iw]), "air") {
-			if t.mediumText == "" {
-				t.mediumText = "air"
-			}
-		}
+	if t.opt.IgnoreMask {
+		t.im = -2
 	}
+	t.maskGood = t.opt.MaskGood
 	return nil
 }
 
 // split splits a data row into fields (reusing t.fields) and records each
-// field's 1-based byte column.
+// field's 1-based byte column. Quoted fields lose their quotes ("" is an
+// empty field).
 func (t *textReader) split(s []byte) [][]byte {
 	t.fields = t.fields[:0]
 	t.fieldCol = t.fieldCol[:0]
@@ -479,7 +659,11 @@ func (t *textReader) split(s []byte) [][]byte {
 		for j < len(s) && s[j] != ' ' && s[j] != '\t' {
 			j++
 		}
-		t.fields = append(t.fields, s[i:j])
+		f := s[i:j]
+		if len(f) >= 2 && f[0] == '"' && f[len(f)-1] == '"' {
+			f = f[1 : len(f)-1]
+		}
+		t.fields = append(t.fields, f)
 		t.fieldCol = append(t.fieldCol, i+1)
 		i = j
 	}
@@ -493,6 +677,41 @@ func parseNum(b []byte) (float64, error) {
 	// strconv copies the string into any error it returns, so viewing the
 	// line's bytes without a copy is safe here.
 	return strconv.ParseFloat(unsafe.String(&b[0], len(b)), 64)
+}
+
+// isMissing reports a field that spells a missing value.
+func isMissing(b []byte) bool {
+	switch len(b) {
+	case 0:
+		return true
+	case 1:
+		return b[0] == '?' || b[0] == '-' || b[0] == '.'
+	}
+	if len(b) > 5 {
+		return false
+	}
+	switch strings.ToLower(string(b)) {
+	case "na", "n/a", "nan", "-nan", "+nan", "null", "none", "--", "nil", "masked":
+		return true
+	}
+	return false
+}
+
+// value parses a flux-like field: missing values become NaN and are
+// counted.
+func (t *textReader) value(f []byte) (float64, bool) {
+	v, err := parseNum(f)
+	if err == nil {
+		if v != v {
+			t.rep.Missing++
+		}
+		return v, true
+	}
+	if isMissing(f) {
+		t.rep.Missing++
+		return math.NaN(), true
+	}
+	return 0, false
 }
 
 func (t *textReader) row(s []byte) error {
@@ -510,16 +729,30 @@ func (t *textReader) row(s []byte) error {
 		if t.ifl < 0 {
 			t.ifl = 1
 		}
-		if t.iu < 0 && t.opt.UncColumn == "" && t.ncol == 3 {
+		if t.iu == -1 && t.opt.UncColumn == "" && t.ncol == 3 {
 			t.iu = 2
+		}
+		if t.iu < 0 {
+			t.iu = -1
+		}
+		if t.im < 0 {
+			t.im = -1
 		}
 		if t.opt.WaveColumn == "" && t.opt.FluxColumn == "" && (t.ncol < 2 || t.ncol > 3) {
 			return t.errf(1, ErrColumns, "found %d columns; without a header row a spectrum has 2 or 3 (wavelength, flux, uncertainty): add a header row or choose the columns", t.ncol)
 		}
-		for _, c := range []int{t.iw, t.ifl, t.iu} {
+		for _, c := range []int{t.iw, t.ifl, t.iu, t.im} {
 			if c >= t.ncol {
 				return t.errf(1, ErrColumns, "column %d chosen but rows have %d", c+1, t.ncol)
 			}
+		}
+		t.rep.Wave, t.rep.Flux = fmt.Sprintf("column %d", t.iw+1), fmt.Sprintf("column %d", t.ifl+1)
+		if t.iu >= 0 {
+			t.rep.Uncertainty, t.rep.UncertaintyKind = fmt.Sprintf("column %d", t.iu+1), "sigma"
+		}
+		if t.im >= 0 {
+			t.rep.Mask, t.rep.MaskConvention = fmt.Sprintf("column %d", t.im+1), maskConventionName(t.maskGood)
+			t.maskName = t.rep.Mask
 		}
 	}
 	if len(f) != t.ncol {
@@ -535,9 +768,21 @@ func (t *textReader) row(s []byte) error {
 	}
 	w, err := parseNum(f[t.iw])
 	if err != nil {
-		return t.errf(t.fieldCol[t.iw], ErrSyntax, "wavelength %q is not a number", f[t.iw])
+		if isMissing(f[t.iw]) {
+			// No wavelength: the sample cannot be placed.
+			t.rep.SkippedRows++
+			if len(t.skippedLines) < 10 {
+				t.skippedLines = append(t.skippedLines, t.line)
+			}
+			return nil
+		}
+		return t.errf(t.fieldCol[t.iw], ErrSyntax, "wavelength %s is not a number", short(f[t.iw]))
 	}
-	if math.IsNaN(w) || math.IsInf(w, 0) || w <= 0 {
+	if t.waveLog {
+		if math.IsNaN(w) || math.IsInf(w, 0) || w < -300 || w > 300 {
+			return t.errf(t.fieldCol[t.iw], ErrOrder, "log10 wavelength %v out of range", w)
+		}
+	} else if math.IsNaN(w) || math.IsInf(w, 0) || w <= 0 {
 		return t.errf(t.fieldCol[t.iw], ErrOrder, "wavelength %v must be finite and positive", w)
 	}
 	if n := len(t.wave); n > 0 {
@@ -551,83 +796,89 @@ func (t *textReader) row(s []byte) error {
 		}
 		t.dir = d
 	}
-	fl, err := parseNum(f[t.ifl])
-	if err != nil {
-		return t.errf(t.fieldCol[t.ifl], ErrSyntax, "flux %q is not a number", f[t.ifl])
+	fl, ok := t.value(f[t.ifl])
+	if !ok {
+		return t.errf(t.fieldCol[t.ifl], ErrSyntax, "flux %s is not a number", short(f[t.ifl]))
 	}
 	t.wave = append(t.wave, w)
 	t.flux = append(t.flux, fl)
 	if t.iu >= 0 {
-		u, err := parseNum(f[t.iu])
-		if err != nil {
-			return t.errf(t.fieldCol[t.iu], ErrSyntax, "uncertainty %q is not a number", f[t.iu])
-		}
-		if t.uncRole == roleIvar {
-			u = 1 / math.Sqrt(u)
+		u, ok := t.value(f[t.iu])
+		if !ok {
+			return t.errf(t.fieldCol[t.iu], ErrSyntax, "uncertainty %s is not a number", short(f[t.iu]))
 		}
 		t.unc = append(t.unc, u)
 	}
 	if t.im >= 0 {
 		m, err := parseNum(f[t.im])
 		if err != nil {
-			return t.errf(t.fieldCol[t.im], ErrSyntax, "mask %q is not a number", f[t.im])
+			switch strings.ToLower(string(f[t.im])) {
+			case "true", "t":
+				m, err = 1, nil
+			case "false", "f":
+				m, err = 0, nil
+			}
+		}
+		if err != nil {
+			if !isMissing(f[t.im]) {
+				return t.errf(t.fieldCol[t.im], ErrSyntax, "mask %s is not a number", short(f[t.im]))
+			}
+			m = math.NaN() // a missing mask value: flagged
 		}
 		if t.mask == nil {
-			t.mask = make([]bool, len(t.wave)-1, cap(t.wave))
+			t.mask = make([]float64, len(t.wave)-1, cap(t.wave))
 		}
-		t.mask = append(t.mask, m != 0)
+		t.mask = append(t.mask, m)
 	}
 	return nil
 }
 
 func (t *textReader) finish() (*Spectrum, error) {
+	rep := t.rep
 	fail := func(err error) error { return &ParseError{File: t.opt.Name, HDU: -1, Err: err} }
-	wu := t.waveUnit
-	if t.opt.WaveUnit != "" {
-		wu = t.opt.WaveUnit
+	if rep.Wave == "" {
+		rep.Wave, rep.Flux = fmt.Sprintf("column %d", t.iw+1), fmt.Sprintf("column %d", t.ifl+1)
 	}
-	unit := UnitAngstrom
-	if wu != "" {
-		u, err := ParseWaveUnit(wu)
-		if err != nil {
-			return nil, fail(causef(ErrUnsupported, "%v", err))
-		}
-		unit = u
-	}
-	fu := t.fluxUnit
-	if t.opt.FluxUnit != "" {
-		fu = t.opt.FluxUnit
-	}
-	fluxUnit, err := ParseFluxUnit(fu)
+	rep.WaveLog = t.waveLog
+	factor, lg, err := resolveWave(t.waveUnit, &t.opt, rep)
 	if err != nil {
-		if t.opt.FluxUnit != "" {
-			return nil, fail(causef(ErrUnsupported, "%v", err))
-		}
-		// An unknown unit in the file is kept as text, not an error.
-		t.meta.Extra["flux_unit_text"] = fu
-		fluxUnit = FluxUnknown
+		return nil, fail(err)
+	}
+	fluxUnit, scale, err := resolveFlux(t.fluxUnit, &t.opt, rep)
+	if err != nil {
+		return nil, fail(err)
+	}
+	if fluxUnit == FluxUnknown && rep.FluxUnitText != "" && len(rep.UnknownUnits) > 0 {
+		t.meta.Extra["flux_unit_text"] = rep.FluxUnitText
 	}
 	med, set, err := t.opt.medium()
 	if err != nil {
 		return nil, fail(err)
 	}
-	if !set && t.mediumText != "" {
-		if med, err = physics.ParseMedium(t.mediumText); err != nil {
-			return nil, fail(fmt.Errorf("%w: %w", ErrSyntax, err))
+	rep.MediumFrom = "option"
+	if !set {
+		rep.MediumFrom = "assumed"
+		if t.mediumText != "" {
+			m, err := physics.ParseMedium(t.mediumText)
+			if err != nil {
+				rep.warnf("medium %s not understood: wavelengths taken as vacuum (set it with --air or --vacuum)", short([]byte(t.mediumText)))
+			} else {
+				med, rep.MediumFrom = m, "file"
+			}
 		}
 	}
+	rep.Medium = med.String()
 	meta := t.meta
 	meta.Source = t.opt.Name
 	meta.FluxUnit = fluxUnit
 	meta.OriginalMedium = med
+	if err := resolveEpoch(&meta, t.mjd, &t.opt, rep); err != nil {
+		return nil, fail(err)
+	}
 	if len(meta.Extra) == 0 {
 		meta.Extra = nil
 	}
-	if f := unit.Factor(); f != 1 {
-		for i := range t.wave {
-			t.wave[i] *= f
-		}
-	}
+	toAngstrom(t.wave, factor, lg)
 	if med == physics.Air {
 		physics.AirToVacuumAll(t.wave)
 	}
@@ -647,8 +898,13 @@ func (t *textReader) finish() (*Spectrum, error) {
 		if allNaN {
 			unc = nil
 			uncNote = "; the uncertainty column holds only NaN and was ignored"
+			rep.Missing -= len(t.unc)
+			rep.Uncertainty, rep.UncertaintyKind = "", ""
+			rep.warnf("the uncertainty column holds only NaN: the spectrum has no uncertainties")
 		}
 	}
+	uncToSigma(unc, t.uncRole)
+	scaleFlux(t.flux, unc, scale)
 	s, err := New(t.wave, t.flux, unc, meta)
 	if err != nil {
 		return nil, fail(causef(ErrOrder, "%v", err))
@@ -659,15 +915,51 @@ func (t *textReader) finish() (*Spectrum, error) {
 				t.mask[i], t.mask[j] = t.mask[j], t.mask[i]
 			}
 		}
-		for i, bad := range t.mask {
-			if bad {
+		nbad := 0
+		for i, v := range t.mask {
+			if maskBad(v, t.maskGood) {
 				s.SetMask(i, MaskFile)
+				rep.flag(t.maskName, v)
+				nbad++
 			}
 		}
+		checkMaskShare(nbad, len(t.mask), t.maskGood, rep)
 	}
-	s.addHistory("read %d samples from %s (text; %d comment and %d blank lines skipped; wavelengths in %s, %s%s)",
-		s.Len(), nameOr(t.opt.Name), t.commentLines, t.blankLines, unit, med, uncNote)
+	if rep.SkippedRows > 0 {
+		rep.warnf("%d rows have no wavelength and were left out (lines %s)", rep.SkippedRows, intList(t.skippedLines))
+	}
+	checkPlausible(s, rep)
+	s.Meta.Read = rep
+	s.addHistory("read %d samples from %s (%s; %d comment and %d blank lines skipped; wavelengths in %s, %s%s)",
+		s.Len(), nameOr(t.opt.Name), rep.Format, t.commentLines, t.blankLines, rep.WaveUnit, med, uncNote)
 	return s, nil
+}
+
+// uncToSigma turns variances or inverse variances into σ in place.
+func uncToSigma(unc []float64, kind int) {
+	switch kind {
+	case roleVar:
+		for i, v := range unc {
+			unc[i] = math.Sqrt(v)
+		}
+	case roleIvar:
+		for i, v := range unc {
+			unc[i] = 1 / math.Sqrt(v)
+		}
+	}
+}
+
+// scaleFlux multiplies flux and uncertainty by a unit's scale factor.
+func scaleFlux(flux, unc []float64, scale float64) {
+	if scale == 1 {
+		return
+	}
+	for i := range flux {
+		flux[i] *= scale
+	}
+	for i := range unc {
+		unc[i] *= scale
+	}
 }
 
 func nameOr(n string) string {

@@ -2,6 +2,7 @@ package spectra
 
 import (
 	"fmt"
+	"math"
 	"strings"
 )
 
@@ -62,41 +63,23 @@ func (u FluxUnit) PerFrequency() bool {
 	return u == FluxPerHz || u == FluxJansky || u == FluxMilliJansky
 }
 
-// ParseFluxUnit recognises common spellings of a flux unit, ignoring case
-// and spaces: "erg/s/cm2/A", "erg s-1 cm-2 Angstrom-1", "flam";
-// "erg/s/cm2/Hz", "fnu"; "Jy"; "mJy"; "normalized"; "arbitrary", "counts",
-// "adu", "" (FluxUnknown).
+// ParseFluxUnit recognises a flux unit that needs no scaling of the
+// values: "erg/s/cm2/A", "erg s-1 cm-2 Angstrom-1", "Angstrom-1 cm-2 erg
+// s-1", "flam"; "erg/s/cm2/Hz", "fnu"; "Jy"; "mJy"; "normalized";
+// "arbitrary", "counts", "adu", "" (FluxUnknown). It reads any spelling of
+// the unit grammar (see ParseFluxUnitScale); a unit that is a multiple of
+// one of these ("1e-17 erg/s/cm2/A", "W/m2/um") is an error here, since the
+// values would have to be scaled: the readers use ParseFluxUnitScale and
+// scale them.
 func ParseFluxUnit(s string) (FluxUnit, error) {
-	k := strings.ToLower(strings.Join(strings.Fields(s), ""))
-	k = strings.NewReplacer("**", "", "^", "", "(", "", ")", "", "[", "", "]", "", "·", "", ".", "", "*", "").Replace(k)
-	switch k {
-	case "", "arbitrary", "arb", "counts", "count", "adu", "relative", "dn", "unknown":
-		return FluxUnknown, nil
-	case "normalized", "normalised", "norm", "dimensionless", "1":
-		return FluxNormalized, nil
-	case "jy", "jansky":
-		return FluxJansky, nil
-	case "mjy", "millijansky":
-		return FluxMilliJansky, nil
-	case "flam", "f_lambda", "flambda":
-		return FluxPerAngstrom, nil
-	case "fnu", "f_nu":
-		return FluxPerHz, nil
+	u, f, err := ParseFluxUnitScale(s)
+	if err != nil {
+		return FluxUnknown, fmt.Errorf("%w (want erg/s/cm2/A, erg/s/cm2/Hz, Jy, mJy, normalized or arbitrary)", err)
 	}
-	// Spelled-out cgs units ("erg/s/cm2/A", "erg s-1 cm-2 Angstrom-1",
-	// "erg / (Angstrom cm2 s)"): erg, s and cm² with Hz or Å.
-	if strings.HasPrefix(k, "erg") && strings.Contains(k, "cm") && strings.Contains(k, "s") {
-		switch {
-		case strings.Contains(k, "hz"):
-			return FluxPerHz, nil
-		case strings.Contains(k, "angstrom") || strings.Contains(k, "å") ||
-			strings.HasSuffix(k, "/a") || strings.HasSuffix(k, "a-1") ||
-			strings.HasSuffix(k, "/aa") || strings.HasSuffix(k, "aa-1") ||
-			strings.HasPrefix(k, "erg/a"):
-			return FluxPerAngstrom, nil
-		}
+	if math.Abs(f-1) > 1e-12 {
+		return FluxUnknown, fmt.Errorf("spectra: flux unit %q is %g × %v: the values need scaling (the readers do it; here give %v)", s, f, u, u)
 	}
-	return FluxUnknown, fmt.Errorf("spectra: unknown flux unit %q (want erg/s/cm2/A, erg/s/cm2/Hz, Jy, mJy, normalized or arbitrary)", s)
+	return u, nil
 }
 
 // WaveUnit is a wavelength unit.

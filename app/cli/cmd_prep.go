@@ -31,19 +31,24 @@ type prepFlags struct {
 	law, waveUnit, fluxUnit, fluxOut, waveCol, fluxCol          string
 	uncCol, windows, hdu, tellBands, userMask                   string
 	featureR, featureSig                                        float64
+	maskCol, maskGood                                           string
+	band, row                                                   int
+	mergeRows, ignoreMask                                       bool
+	days, explosionMJD                                          float64
 }
 
 // prepReport is what prep writes to stderr (as text, or JSON with --json).
 type prepReport struct {
-	Source    string            `json:"source"`
-	Samples   int               `json:"samples"`
-	Masked    map[string]int    `json:"masked"`
-	FluxUnit  string            `json:"flux_unit"`
-	Redshift  float64           `json:"redshift"`
-	History   []string          `json:"history"`
-	Blackbody *prepBlackbody    `json:"blackbody,omitempty"`
-	Features  []spectra.Feature `json:"features,omitempty"`
-	Metadata  map[string]string `json:"metadata,omitempty"`
+	Source    string              `json:"source"`
+	Read      *spectra.ReadReport `json:"read,omitempty"`
+	Samples   int                 `json:"samples"`
+	Masked    map[string]int      `json:"masked"`
+	FluxUnit  string              `json:"flux_unit"`
+	Redshift  float64             `json:"redshift"`
+	History   []string            `json:"history"`
+	Blackbody *prepBlackbody      `json:"blackbody,omitempty"`
+	Features  []spectra.Feature   `json:"features,omitempty"`
+	Metadata  map[string]string   `json:"metadata,omitempty"`
 }
 
 type prepBlackbody struct {
@@ -77,6 +82,14 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 	fs.StringVar(&f.fluxCol, "flux-col", "", "flux column (name or 1-based number)")
 	fs.StringVar(&f.uncCol, "unc-col", "", `uncertainty column (name or number; "none" to ignore one)`)
 	fs.StringVar(&f.hdu, "hdu", "", "FITS header-data unit to read (0 = primary; default: the first holding a spectrum)")
+	fs.StringVar(&f.maskCol, "mask-col", "", `mask or quality column (name or number; "none" to ignore one)`)
+	fs.StringVar(&f.maskGood, "mask-good", "", "the mask value that marks a good sample: 1 (1 = good, anything else flagged) or 0 (the default: non-zero = bad)")
+	fs.BoolVar(&f.ignoreMask, "ignore-mask", false, "ignore the file's mask and quality columns and extensions")
+	fs.IntVar(&f.band, "band", 0, "FITS 2-D image of bands: the row (1-based) holding the flux (default: the one labelled as the spectrum)")
+	fs.IntVar(&f.row, "row", 0, "FITS table whose rows hold whole arrays (orders, segments): read this row (1-based)")
+	fs.BoolVar(&f.mergeRows, "merge-rows", false, "FITS table whose rows hold whole arrays: merge all rows, sorted by wavelength")
+	fs.Float64Var(&f.days, "days", 0, "time since explosion in days (observer frame), overriding the file's epoch")
+	fs.Float64Var(&f.explosionMJD, "explosion-mjd", 0, "MJD of the explosion: the file's observation MJD becomes days since explosion")
 	fs.Float64Var(&f.redshift, "redshift", 0, "redshift to remove (rest frame: λ/(1+z), F_λ·(1+z))")
 	fs.Float64Var(&f.ebv, "ebv", 0, "E(B−V) of foreground dust to correct, in mag (observer frame)")
 	fs.Float64Var(&f.rv, "rv", 3.1, "R_V of the extinction law")
@@ -122,7 +135,7 @@ func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	rep := prepReport{Source: pos[0]}
+	rep := prepReport{Source: pos[0], Read: s.Meta.Read}
 	if f.ebv > 0 {
 		if _, err := s.Deredden(law, f.ebv, f.rv); err != nil {
 			return err
@@ -243,7 +256,32 @@ func (f *prepFlags) check() (spectra.ReadOptions, spectra.ExtinctionLaw, []spect
 		}
 	}
 	opt.WaveUnit, opt.FluxUnit = f.waveUnit, f.fluxUnit
-	opt.WaveColumn, opt.FluxColumn, opt.UncColumn = f.waveCol, f.fluxCol, f.uncCol
+	opt.WaveColumn, opt.FluxColumn, opt.UncColumn, opt.MaskColumn = f.waveCol, f.fluxCol, f.uncCol, f.maskCol
+	switch f.maskGood {
+	case "", "0":
+	case "1":
+		opt.MaskGood = true
+	default:
+		return opt, 0, nil, usagef("prep: --mask-good must be 1 (1 = good) or 0 (non-zero = bad), got %q", f.maskGood)
+	}
+	if f.ignoreMask && (f.maskGood != "" || f.maskCol != "") {
+		return opt, 0, nil, usagef("prep: --ignore-mask excludes --mask-good and --mask-col")
+	}
+	opt.IgnoreMask = f.ignoreMask
+	if f.band < 0 || f.row < 0 {
+		return opt, 0, nil, usagef("prep: --band and --row are 1-based row numbers")
+	}
+	if f.row > 0 && f.mergeRows {
+		return opt, 0, nil, usagef("prep: --row and --merge-rows exclude each other")
+	}
+	opt.Band, opt.Row, opt.MergeRows = f.band, f.row, f.mergeRows
+	if f.days < 0 || f.explosionMJD < 0 || math.IsNaN(f.days) || math.IsNaN(f.explosionMJD) || math.IsInf(f.days+f.explosionMJD, 0) {
+		return opt, 0, nil, usagef("prep: --days and --explosion-mjd must be finite and ≥ 0")
+	}
+	if f.days > 0 && f.explosionMJD > 0 {
+		return opt, 0, nil, usagef("prep: --days and --explosion-mjd exclude each other")
+	}
+	opt.Days, opt.ExplosionMJD = f.days, f.explosionMJD
 	if f.hdu != "" {
 		n, err := strconv.Atoi(f.hdu)
 		if err != nil || n < 0 {
@@ -322,11 +360,13 @@ func reportFit(fit *spectra.BlackbodyFit) *prepBlackbody {
 	return b
 }
 
-// writePrepCSV writes the spectrum: vacuum wavelength in µm, flux,
+// writePrepCSV writes the spectrum: a "# flux_unit = U" comment (so that
+// the file reads back in its unit), then vacuum wavelength in µm, flux,
 // uncertainty ("nan" when the spectrum has none) and the mask bits (0:
 // used; see docs/spectra.md for the bits).
 func writePrepCSV(w *bytes.Buffer, s *spectra.Spectrum) {
-	w.Grow(s.Len() * 48)
+	w.Grow(s.Len()*48 + 64)
+	fmt.Fprintf(w, "# flux_unit = %v\n# medium = vacuum\n", s.Meta.FluxUnit)
 	w.WriteString("wavelength_um,flux,uncertainty,mask\n")
 	var b []byte
 	for i := range s.Wavelength {
@@ -352,6 +392,9 @@ func writePrepCSV(w *bytes.Buffer, s *spectra.Spectrum) {
 }
 
 func writePrepText(w *bytes.Buffer, r *prepReport) {
+	for _, l := range r.Read.Lines() {
+		fmt.Fprintf(w, "%s\n", l)
+	}
 	fmt.Fprintf(w, "%s: %d samples, flux in %s, rest frame of z = %g\n", r.Source, r.Samples, r.FluxUnit, r.Redshift)
 	if len(r.Masked) > 0 {
 		keys := []string{"invalid", "telluric", "user", "file", "edge", "outlier"}

@@ -30,6 +30,9 @@ type prepRow struct {
 func parsePrepCSV(t *testing.T, s string) []prepRow {
 	t.Helper()
 	lines := strings.Split(strings.TrimSpace(s), "\n")
+	for len(lines) > 0 && strings.HasPrefix(lines[0], "#") {
+		lines = lines[1:]
+	}
 	if lines[0] != "wavelength_um,flux,uncertainty,mask" {
 		t.Fatalf("header %q", lines[0])
 	}
@@ -123,15 +126,19 @@ func TestPrepBlackbodyJSON(t *testing.T) {
 }
 
 // TestPrepFITSRoundTrip reads an astropy-written FITS table, converts the
-// flux to mJy and reads the CSV output back with spectra.ReadText.
+// flux to mJy and reads the CSV output back with spectra.ReadText, which
+// finds the flux unit prep wrote (no option needed).
 func TestPrepFITSRoundTrip(t *testing.T) {
 	st, out, errs := runPrepArgs(t, "../../testdata/spectra/table_rows.fits", "--flux-out", "mJy", "--ebv", "0.05", "--law", "f99")
 	if st != 0 {
 		t.Fatalf("status %d: %s", st, errs)
 	}
-	s, err := spectra.ReadText(strings.NewReader(out), spectra.ReadOptions{Name: "out.csv", FluxUnit: "mJy"})
+	s, err := spectra.ReadText(strings.NewReader(out), spectra.ReadOptions{Name: "out.csv"})
 	if err != nil {
 		t.Fatal(err)
+	}
+	if s.Meta.FluxUnit != spectra.FluxMilliJansky || s.Meta.Read.FluxUnitFrom != "file" {
+		t.Errorf("read back in %v (%s), want mJy from the file", s.Meta.FluxUnit, s.Meta.Read.FluxUnitFrom)
 	}
 	if s.Len() != 25 || s.CountMasked(spectra.MaskFile) != 2 {
 		t.Errorf("%d samples, %d flagged; want 25 and the 2 flagged by the file", s.Len(), s.CountMasked(spectra.MaskFile))
@@ -163,6 +170,12 @@ func TestPrepUsageErrors(t *testing.T) {
 		{p, "--telluric-bands", "0.7-0.8"},
 		{p, "--mask", "1-x"},
 		{p, "--bogus"},
+		{p, "--mask-good", "2"},
+		{p, "--ignore-mask", "--mask-good", "1"},
+		{p, "--row", "1", "--merge-rows"},
+		{p, "--band", "-1"},
+		{p, "--days", "-3"},
+		{p, "--days", "2", "--explosion-mjd", "60000"},
 	} {
 		st, out, errs := runPrepArgs(t, args...)
 		if st != 2 || out != "" || strings.Count(errs, "\n") != 1 {
@@ -224,5 +237,75 @@ func TestPrepUserBands(t *testing.T) {
 	// 7600 Å: user; 9500 Å: in a default band but not in the user's list; 10500 Å: telluric.
 	if len(rows) != 3 || rows[0].mask != int(spectra.MaskUser) || rows[1].mask != 0 || rows[2].mask != int(spectra.MaskTelluric) {
 		t.Errorf("rows %+v", rows)
+	}
+}
+
+// TestPrepReadOptionsAndReport: prep passes the read options through
+// (band, row, mask convention, days) and prints the read report on stderr,
+// as text and in the JSON report; a refused read says which flag decides.
+func TestPrepReadOptionsAndReport(t *testing.T) {
+	dir := "../../testdata/spectra/layouts/"
+	st, out, errs := runPrepArgs(t, dir+"image_sci_err_dq_gzipped.fits")
+	if st != 0 {
+		t.Fatalf("status %d: %s", st, errs)
+	}
+	for _, want := range []string{"read FITS image (gzip-compressed), HDU 1 (SCI)", "uncertainty: HDU 2 (ERR)", "mask: HDU 3 (DQ) (non-zero = bad)", "DQ = 4: 2", "values × 1e-17"} {
+		if !strings.Contains(errs, want) {
+			t.Errorf("report lacks %q:\n%s", want, errs)
+		}
+	}
+	if rows := parsePrepCSV(t, out); len(rows) != 24 || rows[3].mask != int(spectra.MaskFile) {
+		t.Errorf("%d rows, mask[3] %d", len(rows), rows[3].mask)
+	}
+	if !strings.HasPrefix(out, "# flux_unit = erg/s/cm2/A\n") {
+		t.Errorf("output does not keep its flux unit: %q", out[:min(len(out), 60)])
+	}
+	st, _, errs = runPrepArgs(t, dir+"table_orders.fits")
+	if st != 1 || !strings.Contains(errs, "--row N") || !strings.Contains(errs, "--merge-rows") {
+		t.Errorf("overlapping orders: status %d, %s", st, errs)
+	}
+	st, out, errs = runPrepArgs(t, dir+"table_orders.fits", "--row", "2", "--json")
+	if st != 0 {
+		t.Fatalf("--row 2: status %d: %s", st, errs)
+	}
+	var rep struct {
+		Read struct {
+			Rows     []int  `json:"rows"`
+			Format   string `json:"format"`
+			WaveFrom string `json:"wave_unit_from"`
+		} `json:"read"`
+	}
+	if err := json.Unmarshal([]byte(errs), &rep); err != nil || len(rep.Read.Rows) != 1 || rep.Read.Rows[0] != 2 || rep.Read.WaveFrom != "file" {
+		t.Errorf("JSON report %+v (%v): %s", rep, err, errs)
+	}
+	if len(parsePrepCSV(t, out)) != 10 {
+		t.Errorf("--row 2 read %d samples, want 10", len(parsePrepCSV(t, out)))
+	}
+	st, _, errs = runPrepArgs(t, dir+"image_bands_wave_row.fits")
+	if st != 1 || !strings.Contains(errs, "--band N") {
+		t.Errorf("unlabelled bands: status %d, %s", st, errs)
+	}
+	st, out, errs = runPrepArgs(t, dir+"image_bands_wave_row.fits", "--band", "2", "--unc-col", "3")
+	if rows := parsePrepCSV(t, out); st != 0 || len(rows) != 24 || rows[0].unc != 0.2 {
+		t.Errorf("--band 2: status %d, %s", st, errs)
+	}
+	st, out, errs = runPrepArgs(t, dir+"quirks.csv", "--mask-good", "1")
+	if rows := parsePrepCSV(t, out); st != 0 || rows[3].mask&int(spectra.MaskFile) == 0 || rows[0].mask != 0 || !strings.Contains(errs, "1 = good") {
+		t.Errorf("--mask-good 1: status %d, %s", st, errs)
+	}
+	st, out, _ = runPrepArgs(t, dir+"quirks.csv", "--ignore-mask")
+	if rows := parsePrepCSV(t, out); st != 0 || rows[3].mask != 0 {
+		t.Errorf("--ignore-mask: status %d", st)
+	}
+	st, _, errs = runPrepArgs(t, dir+"mjd_epoch.txt")
+	if st != 1 || !strings.Contains(errs, "--days") || !strings.Contains(errs, "--explosion-mjd") {
+		t.Errorf("MJD epoch: status %d, %s", st, errs)
+	}
+	if st, _, errs = runPrepArgs(t, dir+"mjd_epoch.txt", "--days", "3"); st != 0 {
+		t.Errorf("--days: status %d, %s", st, errs)
+	}
+	st, _, errs = runPrepArgs(t, dir+"later_extension.fits")
+	if st != 1 || !strings.Contains(errs, "--hdu 2") {
+		t.Errorf("later extension: status %d, %s", st, errs)
 	}
 }

@@ -101,7 +101,19 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 			return fileError("--spectrum", fmt.Errorf("%s: no uncertainty column: χ² needs one", *specPath))
 		}
 	}
-	var warnings []string
+	var warnings, readWarn []string
+	if *specPath != "" {
+		for _, w := range obs.Meta.Read.Warnings {
+			readWarn = append(readWarn, *specPath+": "+w)
+		}
+		if u := obs.Meta.FluxUnit; u.PerFrequency() {
+			// The model is F_λ: compare in erg s⁻¹ cm⁻² Å⁻¹.
+			if err := obs.ConvertFlux(spectra.FluxPerAngstrom); err != nil {
+				return fileError("--spectrum", err)
+			}
+			readWarn = append(readWarn, fmt.Sprintf("%s: flux in %v converted to erg/s/cm2/A for the χ²", *specPath, u))
+		}
+	}
 	var n int
 	sw, err := fit.Sweep(ctx, from, to, *steps, func(ctx context.Context, x float64) (float64, error) {
 		ej := su.ejecta
@@ -134,7 +146,7 @@ func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
 	if _, err := stdout.Write(buf.Bytes()); err != nil {
 		return err
 	}
-	su.describe(stderr, "sweep", *f.preview, warnings)
+	su.describe(stderr, "sweep", *f.preview, append(readWarn, warnings...))
 	if byT {
 		fmt.Fprintf(stderr, "sweep: best temperature_k=%.1f chi2_per_sample=%.4g samples=%d at_edge=%v\n",
 			sw.Best, sw.BestChi2N, n, sw.AtEdge)

@@ -28,8 +28,8 @@ type Bench struct {
 	Data     *Dataset
 	Observed []*spectra.Spectrum // one per epoch, in the dataset's order
 	Store    *linelists.Store
-	// LoadWarnings are what reading the line lists reported; every
-	// computation's warnings repeat them.
+	// LoadWarnings are what reading the spectra and the line lists
+	// reported; every computation's warnings repeat them.
 	LoadWarnings []string
 
 	once  sync.Once

@@ -14,6 +14,7 @@ import (
 	"broadline/app/demo"
 	"broadline/internal/demogen"
 	"broadline/linelists"
+	"broadline/physics"
 	"broadline/spectra"
 )
 
@@ -51,6 +52,80 @@ type Epoch struct {
 	Days                float64 `json:"days"`
 	PhotosphereVelocity float64 `json:"photosphere_velocity_c"`
 	Temperature         float64 `json:"temperature_k"`
+	// Read holds how to read File when the file alone does not say (nil:
+	// everything from the file).
+	Read *EpochRead `json:"read,omitempty"`
+}
+
+// EpochRead are the read options of one epoch's spectrum in a dataset
+// file, all optional (see spectra.ReadOptions, whose fields they fill):
+// which HDU, band or table row, which columns, the units and medium when
+// the file does not give them, and the mask convention.
+type EpochRead struct {
+	HDU        *int   `json:"hdu,omitempty"`
+	Band       int    `json:"band,omitempty"`
+	Row        int    `json:"row,omitempty"`
+	MergeRows  bool   `json:"merge_rows,omitempty"`
+	WaveColumn string `json:"wave_column,omitempty"`
+	FluxColumn string `json:"flux_column,omitempty"`
+	UncColumn  string `json:"unc_column,omitempty"`
+	MaskColumn string `json:"mask_column,omitempty"`
+	WaveUnit   string `json:"wave_unit,omitempty"`
+	FluxUnit   string `json:"flux_unit,omitempty"`
+	Medium     string `json:"medium,omitempty"`
+	MaskGood   bool   `json:"mask_good,omitempty"`
+	IgnoreMask bool   `json:"ignore_mask,omitempty"`
+}
+
+// Check validates the options, naming the key at fault.
+func (r *EpochRead) Check() error {
+	if r == nil {
+		return nil
+	}
+	switch {
+	case r.HDU != nil && *r.HDU < 0:
+		return fmt.Errorf("read.hdu %d: want 0 (primary) or an extension number", *r.HDU)
+	case r.Band < 0 || r.Row < 0:
+		return fmt.Errorf("read.band, read.row: 1-based row numbers")
+	case r.Row > 0 && r.MergeRows:
+		return fmt.Errorf("read.row and read.merge_rows exclude each other")
+	case r.IgnoreMask && (r.MaskGood || r.MaskColumn != ""):
+		return fmt.Errorf("read.ignore_mask excludes read.mask_good and read.mask_column")
+	}
+	if r.WaveUnit != "" {
+		if _, _, err := spectra.ParseWaveScale(r.WaveUnit); err != nil {
+			return fmt.Errorf("read.wave_unit: %w", err)
+		}
+	}
+	if r.FluxUnit != "" {
+		if _, _, err := spectra.ParseFluxUnitScale(r.FluxUnit); err != nil {
+			return fmt.Errorf("read.flux_unit: %w", err)
+		}
+	}
+	if r.Medium != "" {
+		if _, err := physics.ParseMedium(r.Medium); err != nil {
+			return fmt.Errorf("read.medium: %w", err)
+		}
+	}
+	return nil
+}
+
+// ReadOptions returns the options to read epoch i's spectrum with: its
+// read settings, and its days since explosion (which take precedence over
+// any epoch in the file).
+func (d *Dataset) ReadOptions(i int) spectra.ReadOptions {
+	e := d.Epochs[i]
+	opt := spectra.ReadOptions{Days: e.Days}
+	if r := e.Read; r != nil {
+		opt.Band, opt.Row, opt.MergeRows = r.Band, r.Row, r.MergeRows
+		opt.WaveColumn, opt.FluxColumn, opt.UncColumn, opt.MaskColumn = r.WaveColumn, r.FluxColumn, r.UncColumn, r.MaskColumn
+		opt.WaveUnit, opt.FluxUnit, opt.Medium = r.WaveUnit, r.FluxUnit, r.Medium
+		opt.MaskGood, opt.IgnoreMask = r.MaskGood, r.IgnoreMask
+		if r.HDU != nil {
+			opt.HDU, opt.HDUSet = *r.HDU, true
+		}
+	}
+	return opt
 }
 
 // Bounds of a dataset file: it is small and hand-written.
@@ -103,6 +178,9 @@ func (d *Dataset) Check() error {
 		if e.File == "" {
 			return fmt.Errorf("epochs[%d].file: name the spectrum", i+1)
 		}
+		if err := e.Read.Check(); err != nil {
+			return fmt.Errorf("epochs[%d].%w", i+1, err)
+		}
 		m := d.StartModel(i)
 		if err := d.Ejecta(m).Validate(); err != nil {
 			return fmt.Errorf("epochs[%d] (%s): %w", i+1, e.File, err)
@@ -141,19 +219,20 @@ func Demo() (*Bench, error) {
 	if err != nil {
 		return nil, fmt.Errorf("demo: %w", err)
 	}
-	obs, err := readSpectra(d, func(name string) (*spectra.Spectrum, error) {
+	obs, warn, err := readSpectra(d, func(name string, opt spectra.ReadOptions) (*spectra.Spectrum, error) {
 		p := path.Join(demo.Dir, name)
 		r, err := demo.FS.Open(p)
 		if err != nil {
 			return nil, err
 		}
 		defer r.Close()
-		return spectra.Read(r, spectra.ReadOptions{Name: p})
+		opt.Name = p
+		return spectra.Read(r, opt)
 	})
 	if err != nil {
 		return nil, fmt.Errorf("demo: %w", err)
 	}
-	return newBench(DemoName, d, obs, st, rep.Warnings), nil
+	return newBench(DemoName, d, obs, st, append(warn, rep.Warnings...)), nil
 }
 
 // demoDataset is the demo's scenario as a Dataset (the scenario also
@@ -194,25 +273,41 @@ func demoDataset() (*Dataset, *demogen.Scenario, error) {
 	return d, sc, nil
 }
 
-// readSpectra reads every epoch's spectrum with read; each must carry
-// uncertainties (χ² needs them). A spectrum without an epoch in its
-// metadata gets the dataset's days.
-func readSpectra(d *Dataset, read func(name string) (*spectra.Spectrum, error)) ([]*spectra.Spectrum, error) {
+// readSpectra reads every epoch's spectrum with read and the epoch's read
+// options; each must carry uncertainties (χ² needs them). The epoch's days
+// since explosion are the dataset's. A flux per unit frequency is
+// converted to erg s⁻¹ cm⁻² Å⁻¹, the model's unit, before any χ². The
+// warnings are the readers' (unit assumed or not understood, implausible
+// range, …) and the loader's, each naming its epoch and file.
+func readSpectra(d *Dataset, read func(name string, opt spectra.ReadOptions) (*spectra.Spectrum, error)) ([]*spectra.Spectrum, []string, error) {
 	var out []*spectra.Spectrum
+	var warn []string
 	for i, e := range d.Epochs {
-		s, err := read(e.File)
+		s, err := read(e.File, d.ReadOptions(i))
 		if err != nil {
-			return nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+			return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
 		}
 		if s.Uncertainty == nil {
-			return nil, fmt.Errorf("epochs[%d]: %s has no uncertainty column; χ² needs one", i+1, e.File)
+			return nil, nil, fmt.Errorf("epochs[%d]: %s has no uncertainty column; χ² needs one (name it with read.unc_column)", i+1, e.File)
 		}
-		if s.Meta.Epoch == 0 {
-			s.Meta.Epoch = e.Days
+		at := fmt.Sprintf("epochs[%d] (%s): ", i+1, e.File)
+		if s.Meta.Read != nil {
+			for _, w := range s.Meta.Read.Warnings {
+				warn = append(warn, at+w)
+			}
+		}
+		switch u := s.Meta.FluxUnit; {
+		case u.PerFrequency():
+			if err := s.ConvertFlux(spectra.FluxPerAngstrom); err != nil {
+				return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+			}
+			warn = append(warn, at+fmt.Sprintf("flux in %v converted to erg/s/cm2/A (F_λ = F_ν c/λ²) for the comparison with the model", u))
+		case u == spectra.FluxUnknown || u == spectra.FluxNormalized:
+			warn = append(warn, at+fmt.Sprintf("flux unit %v: compared with the model's erg/s/cm2/A as if it were in that unit (give read.flux_unit)", u))
 		}
 		out = append(out, s)
 	}
-	return out, nil
+	return out, warn, nil
 }
 
 // OpenDataset reads the dataset file at path, its spectra and its line
@@ -240,8 +335,8 @@ func OpenDataset(ctx context.Context, path string, progress func(linelists.Progr
 		}
 		return filepath.Join(dir, filepath.FromSlash(name))
 	}
-	obs, err := readSpectra(d, func(name string) (*spectra.Spectrum, error) {
-		return spectra.ReadFile(resolve(name), spectra.ReadOptions{})
+	obs, spWarn, err := readSpectra(d, func(name string, opt spectra.ReadOptions) (*spectra.Spectrum, error) {
+		return spectra.ReadFile(resolve(name), opt)
 	})
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", abs, err)
@@ -257,7 +352,7 @@ func OpenDataset(ctx context.Context, path string, progress func(linelists.Progr
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", abs, err)
 	}
-	return newBench(abs, d, obs, st, rep.Warnings), nil
+	return newBench(abs, d, obs, st, append(spWarn, rep.Warnings...)), nil
 }
 
 // WriteExample writes the built-in demo into dir as a dataset of one's

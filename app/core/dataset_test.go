@@ -5,12 +5,16 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
+	"gonum.org/v1/gonum/floats/scalar"
+
 	"broadline/linelists"
+	"broadline/spectra"
 )
 
 // exampleDataset writes the demo as a dataset directory in a fresh
@@ -152,4 +156,86 @@ func FuzzSession(f *testing.F) {
 			t.Fatalf("a valid session does not survive saving: %v", err)
 		}
 	})
+}
+
+// TestDatasetEpochReadOptions: an epoch's "read" options reach the reader;
+// a spectrum in mJy is converted to erg/s/cm²/Å before any χ² (the
+// comparison then matches the original F_λ file's); the dataset's days
+// override an MJD-like epoch in the file; the readers' notes become load
+// warnings naming the epoch; bad read options are refused with their key.
+func TestDatasetEpochReadOptions(t *testing.T) {
+	path := exampleDataset(t)
+	dir := filepath.Dir(path)
+	orig, err := spectra.ReadFile(filepath.Join(dir, "spectra", "demo_epoch1.txt"), spectra.ReadOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	fnu := orig.Clone()
+	if err := fnu.ConvertFlux(spectra.FluxMilliJansky); err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	b.WriteString("# epoch = 60000.5\n# fluxes converted to mJy from the invented demo\nwave,flux,err,mask\n")
+	for i := range fnu.Wavelength {
+		m := 0
+		if fnu.Masked(i) {
+			m = 1
+		}
+		fmt.Fprintf(&b, "%.17g,%.17g,%.17g,%d\n", fnu.Wavelength[i]/1e4, fnu.Flux[i], fnu.Uncertainty[i], m)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "spectra", "epoch1_mjy.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	raw, _ := os.ReadFile(path)
+	js := strings.Replace(string(raw), `"file": "spectra/demo_epoch1.txt",`,
+		`"file": "spectra/epoch1_mjy.csv", "read": {"wave_unit": "um", "flux_unit": "mJy", "medium": "vacuum"},`, 1)
+	if js == string(raw) {
+		t.Fatal("epoch 1 not found in the example")
+	}
+	p := filepath.Join(dir, "mjy.json")
+	os.WriteFile(p, []byte(js), 0o644)
+	bm, err := OpenDataset(context.Background(), p, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := bm.Observed[0]
+	if got.Meta.FluxUnit != spectra.FluxPerAngstrom || got.Meta.Epoch != bm.Data.Epochs[0].Days {
+		t.Fatalf("unit %v epoch %v", got.Meta.FluxUnit, got.Meta.Epoch)
+	}
+	for i := range orig.Flux {
+		if !scalar.EqualWithinRel(got.Flux[i], orig.Flux[i], 1e-9) || !scalar.EqualWithinRel(got.Uncertainty[i], orig.Uncertainty[i], 1e-9) {
+			t.Fatalf("sample %d: %v ± %v, want %v ± %v", i, got.Flux[i], got.Uncertainty[i], orig.Flux[i], orig.Uncertainty[i])
+		}
+	}
+	if w := strings.Join(bm.LoadWarnings, "\n"); !strings.Contains(w, "epochs[1] (spectra/epoch1_mjy.csv): flux in mJy converted") {
+		t.Errorf("load warnings %q", bm.LoadWarnings)
+	}
+	bo, err := OpenDataset(context.Background(), path, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := NewSession(bo).Model
+	a, err := bo.Compute(context.Background(), m, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c, err := bm.Compute(context.Background(), m, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if a.N != c.N || !scalar.EqualWithinRel(a.Chi2, c.Chi2, 1e-6) {
+		t.Errorf("χ² %v over %d (F_λ file) vs %v over %d (mJy file)", a.Chi2, a.N, c.Chi2, c.N)
+	}
+	for name, c := range map[string]struct{ read, want string }{
+		"unit":        {`{"flux_unit": "furlong"}`, "epochs[1].read.flux_unit"},
+		"medium":      {`{"medium": "water"}`, "epochs[1].read.medium"},
+		"unknown key": {`{"hdu_number": 1}`, "hdu_number"},
+		"row+merge":   {`{"row": 1, "merge_rows": true}`, "read.row"},
+	} {
+		bad := strings.Replace(string(raw), `"file": "spectra/demo_epoch1.txt",`, `"file": "spectra/demo_epoch1.txt", "read": `+c.read+`,`, 1)
+		os.WriteFile(p, []byte(bad), 0o644)
+		if _, err := OpenDataset(context.Background(), p, nil); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: %v, want an error naming %q", name, err, c.want)
+		}
+	}
 }
