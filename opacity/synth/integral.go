@@ -1,6 +1,7 @@
 package synth
 
 import (
+	"broadline/opacity/internal/kernels"
 	"context"
 	"fmt"
 	"math"
@@ -446,14 +447,12 @@ func pointSpan(I []float64, j0 int, p point, a []float32, n int) (seg []float64,
 	return seg, a0[:len(seg)], a1[:len(seg)]
 }
 
-// scatterPoint applies one resonance point.
+// scatterPoint applies one resonance point: on each observed point it
+// reaches, I ← I + (w − I)·c·(a0 + f·(a1 − a0)) (kernels.Scatter, the
+// hottest loop of the full synthesis).
 func scatterPoint(I []float64, j0 int, p point, a []float32, n int) {
 	seg, a0, a1 := pointSpan(I, j0, p, a, n)
-	f, w, c := p.f, p.w, p.frac
-	for x := range seg {
-		t := c * (float64(a0[x]) + f*float64(a1[x]-a0[x]))
-		seg[x] += (w - seg[x]) * t
-	}
+	kernels.Scatter(seg, a0, a1, p.f, p.w, p.frac)
 }
 
 // absorb applies I ← I e^{−τ} for the points pts.

@@ -71,3 +71,28 @@ func linesAVX2(dst, wl, gf, lv []float64, hck float64)
 //
 //go:noescape
 func linesAVX512(dst, wl, gf, lv []float64, hck float64)
+
+// scatterVec is Scatter's loop over the first 4·⌊len(I)/4⌋ points with the
+// widest vector loop in use (lanes must be > 0).
+func scatterVec(I []float64, a0, a1 []float32, f, w, c float64) {
+	a0, a1 = a0[:len(I)], a1[:len(I)] // the kernels trust these lengths
+	n8 := 0
+	if lanes == 8 {
+		n8 = len(I) &^ 7
+		scatterAVX512(I[:n8], a0[:n8], a1[:n8], f, w, c)
+	}
+	scatterAVX2(I[n8:], a0[n8:], a1[n8:], f, w, c) // the rest, or a last group of four
+}
+
+// scatterAVX2 is scatterGo four points at a time, for the first
+// 4·⌊len(I)/4⌋ points (same steps, same bits). a0 and a1 must be at least
+// as long as that.
+//
+//go:noescape
+func scatterAVX2(I []float64, a0, a1 []float32, f, w, c float64)
+
+// scatterAVX512 is scatterAVX2 eight points at a time, for the first
+// 8·⌊len(I)/8⌋ points.
+//
+//go:noescape
+func scatterAVX512(I []float64, a0, a1 []float32, f, w, c float64)

@@ -284,3 +284,79 @@ lesc512:
 
 ldone512:
 	RET
+
+// The scatter loops take the steps of scatterGo: the escape difference in
+// single precision, widened, then products and sums each rounded (no fused
+// multiply-adds), so they give the Go loop's bits.
+
+// func scatterAVX2(I []float64, a0, a1 []float32, f, w, c float64)
+TEXT ·scatterAVX2(SB), NOSPLIT, $0-96
+	MOVQ         I_base+0(FP), DI
+	MOVQ         I_len+8(FP), CX
+	MOVQ         a0_base+24(FP), SI
+	MOVQ         a1_base+48(FP), DX
+	SHRQ         $2, CX
+	JZ           sdone
+	VBROADCASTSD f+72(FP), Y6
+	VBROADCASTSD w+80(FP), Y7
+	VBROADCASTSD c+88(FP), Y8
+
+sloop:
+	VMOVUPS   (SI), X0
+	VMOVUPS   (DX), X1
+	VSUBPS    X0, X1, X1 // a1 − a0, single precision
+	VCVTPS2PD X0, Y0
+	VCVTPS2PD X1, Y1
+	VMULPD    Y6, Y1, Y1 // f·d
+	VADDPD    Y1, Y0, Y0 // a0 + f·d
+	VMULPD    Y8, Y0, Y0 // t = c·(a0 + f·d)
+	VMOVUPD   (DI), Y2
+	VSUBPD    Y2, Y7, Y3 // w − I
+	VMULPD    Y0, Y3, Y3 // (w − I)·t
+	VADDPD    Y3, Y2, Y2 // I + (w − I)·t
+	VMOVUPD   Y2, (DI)
+	ADDQ      $16, SI
+	ADDQ      $16, DX
+	ADDQ      $32, DI
+	DECQ      CX
+	JNZ       sloop
+	VZEROUPPER
+
+sdone:
+	RET
+
+// func scatterAVX512(I []float64, a0, a1 []float32, f, w, c float64)
+TEXT ·scatterAVX512(SB), NOSPLIT, $0-96
+	MOVQ         I_base+0(FP), DI
+	MOVQ         I_len+8(FP), CX
+	MOVQ         a0_base+24(FP), SI
+	MOVQ         a1_base+48(FP), DX
+	SHRQ         $3, CX
+	JZ           sdone512
+	VBROADCASTSD f+72(FP), Z6
+	VBROADCASTSD w+80(FP), Z7
+	VBROADCASTSD c+88(FP), Z8
+
+sloop512:
+	VMOVUPS   (SI), Y0
+	VMOVUPS   (DX), Y1
+	VSUBPS    Y0, Y1, Y1
+	VCVTPS2PD Y0, Z0
+	VCVTPS2PD Y1, Z1
+	VMULPD    Z6, Z1, Z1
+	VADDPD    Z1, Z0, Z0
+	VMULPD    Z8, Z0, Z0
+	VMOVUPD   (DI), Z2
+	VSUBPD    Z2, Z7, Z3
+	VMULPD    Z0, Z3, Z3
+	VADDPD    Z3, Z2, Z2
+	VMOVUPD   Z2, (DI)
+	ADDQ      $32, SI
+	ADDQ      $32, DX
+	ADDQ      $64, DI
+	DECQ      CX
+	JNZ       sloop512
+	VZEROUPPER
+
+sdone512:
+	RET

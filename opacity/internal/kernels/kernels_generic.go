@@ -12,3 +12,6 @@ func linesVec(dst, wl, gf, lv []float64, hck float64) { linesGo(dst, wl, gf, lv,
 
 // escapesVec is escapesGo (see linesVec).
 func escapesVec(dst, tau, wl []float64) { escapesGo(dst, tau, wl) }
+
+// scatterVec is scatterGo (see linesVec).
+func scatterVec(I []float64, a0, a1 []float32, f, w, c float64) { scatterGo(I, a0, a1, f, w, c) }
