@@ -42,10 +42,11 @@ bench: deps
 fmt:
 	gofmt -w $$(git ls-files '*.go')
 
-# screenshot: run the workbench under Xvfb and save shot.png (needs xvfb, xauth, imagemagick).
+# screenshot: run the workbench under Xvfb on the walkthrough's session (the late demo epoch
+# with the Nd knock-out) and save shot.png (needs xvfb, xauth, imagemagick).
 screenshot: build
 	@scripts/deps.sh xvfb xauth imagemagick
-	scripts/screenshot.sh $(BIN) shot.png
+	scripts/screenshot.sh $(BIN) shot.png 12 open docs/late-epoch-knockout.session.json
 
 clean:
 	rm -rf bin shot.png

@@ -145,6 +145,7 @@ func printHelp(w io.Writer) {
 	b.WriteString("broadline: a workbench for identifying broad absorption features in spectra of\n")
 	b.WriteString("fast, heavy-element-rich transients.\n\n")
 	b.WriteString("usage:\n  broadline                 open the workbench on the built-in demo\n")
+	b.WriteString("  broadline open SESSION    open the workbench on a saved session (and its dataset)\n")
 	b.WriteString("  broadline COMMAND [ARGS]  run a computation headless\n\ncommands:\n")
 	names := make([]string, 0, len(commands))
 	for n := range commands {

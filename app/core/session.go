@@ -1,12 +1,15 @@
 package core
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"strings"
+
+	"broadline/linelists"
 )
 
 // SessionVersion is written into every saved session; a file from a newer
@@ -34,6 +37,9 @@ type Session struct {
 	// WavelengthUnit is how wavelengths are shown: "um" (the default when
 	// empty), "nm" or "A".
 	WavelengthUnit string `json:"wavelength_unit,omitempty"`
+	// KnockOut is the element whose knock-out the figure also draws (its
+	// symbol; empty for none).
+	KnockOut string `json:"knock_out,omitempty"`
 }
 
 // Candidate is a model the analyst keeps to compare with others.
@@ -58,6 +64,12 @@ func (s *Session) Validate(d *Dataset) error {
 	}
 	if _, ok := WaveUnits[s.WavelengthUnit]; !ok && s.WavelengthUnit != "" {
 		return fmt.Errorf("wavelength_unit %q: want um, nm or A", s.WavelengthUnit)
+	}
+	if s.KnockOut != "" {
+		e, err := linelists.ElementBySymbol(s.KnockOut)
+		if err != nil || e.Symbol != s.KnockOut {
+			return fmt.Errorf("knock_out %q: want an element symbol such as Nd", s.KnockOut)
+		}
 	}
 	if len(s.Candidates) > MaxCandidates {
 		return fmt.Errorf("%d candidates (at most %d are kept)", len(s.Candidates), MaxCandidates)
@@ -159,6 +171,34 @@ func ReadSession(r io.Reader) (*Session, error) {
 		return nil, fmt.Errorf("read session: %w", err)
 	}
 	return &s, nil
+}
+
+// OpenSession reads the session saved at path and opens its dataset (the
+// built-in demo, or the dataset file it names, through the cached loader),
+// checking the one against the other.
+func OpenSession(ctx context.Context, path string, progress func(linelists.Progress)) (*Bench, *Session, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, fmt.Errorf("open session: %w", err)
+	}
+	s, err := ReadSession(f)
+	f.Close()
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", path, err)
+	}
+	var b *Bench
+	if s.Dataset == DemoName {
+		b, err = Demo()
+	} else {
+		b, err = OpenDataset(ctx, s.Dataset, progress)
+	}
+	if err != nil {
+		return nil, nil, fmt.Errorf("%s: its dataset: %w", path, err)
+	}
+	if err := s.Validate(b.Data); err != nil {
+		return nil, nil, fmt.Errorf("%s: %w", path, err)
+	}
+	return b, s, nil
 }
 
 // LoadSession reads the session saved at path and checks it against the

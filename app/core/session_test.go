@@ -2,6 +2,7 @@ package core
 
 import (
 	"bytes"
+	"context"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -108,5 +109,39 @@ func TestSessionRejects(t *testing.T) {
 		if err := s.Validate(d); err == nil {
 			t.Errorf("%s: invalid session accepted: %+v", name, s)
 		}
+	}
+}
+
+// TestSessionKnockOutAndOpen: a session keeps the knock-out element and
+// OpenSession brings back the session with its dataset (the demo here,
+// and the committed walkthrough session); a knock-out that is not an
+// element symbol is refused.
+func TestSessionKnockOutAndOpen(t *testing.T) {
+	b := demoBench(t)
+	s := NewSession(b)
+	s.Model = b.Data.StartModel(2)
+	s.KnockOut = "Nd"
+	path := filepath.Join(t.TempDir(), "s.json")
+	if err := s.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	ob, got, err := OpenSession(context.Background(), path, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ob.Name != DemoName || !reflect.DeepEqual(*got, *s) {
+		t.Errorf("opened %q %+v, want the demo and %+v", ob.Name, got, s)
+	}
+	if _, w, err := OpenSession(context.Background(), "../../docs/late-epoch-knockout.session.json", nil); err != nil || w.KnockOut != "Nd" || w.Epoch != 2 {
+		t.Errorf("the walkthrough session: %+v, %v", w, err)
+	}
+	for _, bad := range []string{"Qq", "nd", "Nd,Sm"} {
+		s.KnockOut = bad
+		if err := s.Validate(b.Data); err == nil || !strings.Contains(err.Error(), "knock_out") {
+			t.Errorf("knock-out %q: %v", bad, err)
+		}
+	}
+	if _, _, err := OpenSession(context.Background(), filepath.Join(t.TempDir(), "none.json"), nil); err == nil {
+		t.Error("a missing session file opened")
 	}
 }

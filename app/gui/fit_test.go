@@ -125,3 +125,32 @@ func TestWorkbenchFit(t *testing.T) {
 		t.Error("Use best accepted for a model that has changed since the fit")
 	}
 }
+
+// TestWorkbenchKeepsKnockOut: the knock-out chosen is the session's (saved
+// with it) and a session's knock-out is selected when the window opens;
+// one without lines in the line lists is dropped with a message.
+func TestWorkbenchKeepsKnockOut(t *testing.T) {
+	b := demoBench(t)
+	s := core.NewSession(b)
+	s.KnockOut = "Nd"
+	wb := newWorkbench(test.NewTempApp(t), b, s)
+	t.Cleanup(wb.win.Close)
+	if wb.knockSel.Selected != "Nd" || wb.without != 60 {
+		t.Errorf("opened with knock-out %q (Z %d), want Nd", wb.knockSel.Selected, wb.without)
+	}
+	wb.knockSel.SetSelected("Sr")
+	if wb.sess.KnockOut != "Sr" || wb.without != 38 {
+		t.Errorf("after choosing Sr: session %q, Z %d", wb.sess.KnockOut, wb.without)
+	}
+	wb.knockSel.SetSelectedIndex(0)
+	if wb.sess.KnockOut != "" || wb.without != 0 {
+		t.Errorf("after choosing nothing: session %q, Z %d", wb.sess.KnockOut, wb.without)
+	}
+	s2 := core.NewSession(b)
+	s2.KnockOut = "Xe" // the demo has no Xe lines
+	wb2 := newWorkbench(test.NewTempApp(t), b, s2)
+	t.Cleanup(wb2.win.Close)
+	if wb2.without != 0 || wb2.sess.KnockOut != "" || !strings.Contains(wb2.status.Text, "Xe") {
+		t.Errorf("a knock-out without lines: Z %d, session %q, status %q", wb2.without, wb2.sess.KnockOut, wb2.status.Text)
+	}
+}

@@ -26,13 +26,28 @@ import (
 
 // Run opens the desktop workbench on the built-in demo and blocks until it
 // is closed.
-func Run() error {
-	b, err := core.Demo()
+func Run() error { return RunSession("") }
+
+// RunSession opens the workbench on the session saved at path (its dataset
+// with it), or on the built-in demo when path is empty, and runs until the
+// window closes. A session that cannot be opened is an error before any
+// window appears.
+func RunSession(path string) error {
+	var b *core.Bench
+	var s *core.Session
+	var err error
+	if path == "" {
+		if b, err = core.Demo(); err == nil {
+			s = core.NewSession(b)
+		}
+	} else {
+		b, s, err = core.OpenSession(context.Background(), path, nil)
+	}
 	if err != nil {
 		return err
 	}
 	a := app.NewWithID("org.broadline.workbench")
-	wb := newWorkbench(a, b, core.NewSession(b))
+	wb := newWorkbench(a, b, s)
 	wb.win.Resize(fyne.NewSize(1280, 800))
 	wb.recompute()
 	wb.win.ShowAndRun()
@@ -90,6 +105,7 @@ type workbench struct {
 	// 0 for none; knockSel chooses it.
 	without  int
 	knockSel *widget.Select
+	knockZ   map[string]int // knockSel's options → Z (0: none)
 	// syncing is true while syncControls sets the controls from the
 	// session, so that their callbacks change nothing.
 	syncing bool
@@ -247,14 +263,21 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.figure.FillMode = canvas.ImageFillContain
 	wb.figure.SetMinSize(fyne.NewSize(640, 360))
 	knockOpts, knockZ := knockOutChoices(b)
+	wb.knockZ = knockZ
 	wb.knockSel = widget.NewSelect(knockOpts, func(v string) {
 		z := knockZ[v]
+		wb.sess.KnockOut = ""
+		if z > 0 {
+			wb.sess.KnockOut = v
+		}
 		if z != wb.without {
 			wb.without = z
-			wb.recompute()
+			if !wb.syncing {
+				wb.recompute()
+			}
 		}
 	})
-	wb.knockSel.SetSelectedIndex(0)
+	wb.syncKnockOut()
 	var unitNames []string
 	for _, k := range core.WaveUnitKeys {
 		unitNames = append(unitNames, core.WaveUnits[k].Name)
@@ -341,7 +364,25 @@ func (wb *workbench) syncControls() {
 	wb.boundary.SetText(wb.sess.BoundaryText())
 	wb.preview.SetChecked(wb.sess.Preview)
 	wb.unitSel.SetSelected(core.UnitOf(wb.sess.WavelengthUnit).Name)
+	wb.syncKnockOut()
 	wb.showValues()
+}
+
+// syncKnockOut selects the session's knock-out element, or nothing when
+// the session has none or the line lists have no lines of it.
+func (wb *workbench) syncKnockOut() {
+	was := wb.syncing
+	wb.syncing = true
+	defer func() { wb.syncing = was }()
+	want := wb.sess.KnockOut
+	if _, ok := wb.knockZ[want]; ok && want != "" {
+		wb.knockSel.SetSelected(want)
+		return
+	}
+	wb.knockSel.SetSelectedIndex(0)
+	if want != "" {
+		wb.status.SetText("the session's knock-out " + want + " has no lines in these line lists: none drawn")
+	}
 }
 
 func (wb *workbench) showValues() {
