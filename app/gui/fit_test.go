@@ -4,8 +4,10 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -152,5 +154,29 @@ func TestWorkbenchKeepsKnockOut(t *testing.T) {
 	t.Cleanup(wb2.win.Close)
 	if wb2.without != 0 || wb2.sess.KnockOut != "" || !strings.Contains(wb2.status.Text, "Xe") {
 		t.Errorf("a knock-out without lines: Z %d, session %q, status %q", wb2.without, wb2.sess.KnockOut, wb2.status.Text)
+	}
+}
+
+// TestUseTemperatureSweepExactly: "Use T_ph = …" puts the value the button
+// gives (to 1 K) in the session, not the slider's 50-K step, and the label
+// shows it; once the velocity has changed, the sweep is refused.
+func TestUseTemperatureSweepExactly(t *testing.T) {
+	wb := cheapWorkbench(t)
+	t0 := wb.sess.Temperature
+	sw := waitJob(t, wb, func() { wb.startSweep(core.Temperature, t0-700, t0+900, 5) }).(*core.Sweep)
+	if !strings.Contains(wb.status.Text, "at v_ph = ") {
+		t.Errorf("the sweep's message does not say the velocity it was made at: %q", wb.status.Text)
+	}
+	wb.done = func(*core.Overlay, error) {}
+	want := math.Round(sw.Best)
+	wb.useSweep(sw)
+	if wb.sess.Temperature != want || !strings.Contains(wb.tempLabel.Text, strconv.Itoa(int(want))) {
+		t.Errorf("used T = %g (label %q), want %g (best %g)", wb.sess.Temperature, wb.tempLabel.Text, want, sw.Best)
+	}
+	wb.sess.PhotosphereVelocity += 0.01
+	before := wb.sess.Model
+	wb.useSweep(sw)
+	if wb.sess.Model != before || !strings.Contains(wb.status.Text, "another model") {
+		t.Errorf("a sweep for another velocity was used: %q", wb.status.Text)
 	}
 }
