@@ -110,6 +110,9 @@ type workbench struct {
 	// syncing is true while syncControls sets the controls from the
 	// session, so that their callbacks change nothing.
 	syncing bool
+	// note is a sentence the next model's status line starts with (what
+	// an epoch switch set), then cleared.
+	note string
 	unitSel *widget.Select // wavelength unit of the figure and the table
 	// lastKnock is the knock-out overlay of the last computation (nil
 	// when none was asked for); tests read it.
@@ -138,12 +141,20 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	}
 	wb.epoch = widget.NewSelect(epochs, func(string) {
 		i := wb.epoch.SelectedIndex()
-		if i < 0 || i == wb.sess.Epoch {
+		if i < 0 || i == wb.sess.Epoch || wb.syncing {
 			return
 		}
-		wb.sess.Model = wb.bench.Data.StartModel(i)
+		msg, err := wb.sess.SwitchEpoch(wb.bench.Data, i)
+		if err != nil {
+			wb.status.SetText(err.Error())
+			return
+		}
+		// The selector lets go of the keyboard, so that arrow keys over
+		// the plot do not change the epoch.
+		wb.win.Canvas().Unfocus()
 		wb.syncControls()
 		wb.updateFeatures()
+		wb.note = msg
 		wb.recompute()
 	})
 
@@ -602,6 +613,10 @@ func (wb *workbench) finish(gen int, s core.Model, ov, knock *core.Overlay, show
 		wb.figure.Image = img
 		wb.figure.Refresh()
 		msg := fmt.Sprintf("v_ph = %.3f c, T = %.0f K: χ²/N = %.2f over %d unmasked samples", s.PhotosphereVelocity, s.Temperature, ov.Reduced(), ov.N)
+		if wb.note != "" {
+			msg = wb.note + "\n" + msg
+			wb.note = ""
+		}
 		if ov.Preview {
 			msg += " (absorption-only preview: an approximation)"
 		}
