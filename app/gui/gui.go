@@ -112,7 +112,7 @@ type workbench struct {
 	syncing bool
 	// note is a sentence the next model's status line starts with (what
 	// an epoch switch set), then cleared.
-	note string
+	note    string
 	unitSel *widget.Select // wavelength unit of the figure and the table
 	// lastKnock is the knock-out overlay of the last computation (nil
 	// when none was asked for); tests read it.
