@@ -276,15 +276,39 @@ type Comparison struct {
 // Compare synthesises every candidate kept for epoch (in the order kept),
 // calling progress after each. It stops when ctx is done.
 func (b *Bench) Compare(ctx context.Context, cands []Candidate, epoch int, progress func(done, total int)) (*Comparison, error) {
-	cmp := &Comparison{Epoch: epoch}
+	var here []Candidate
 	for _, c := range cands {
 		if c.Epoch == epoch {
-			cmp.Candidates = append(cmp.Candidates, c)
+			here = append(here, c)
 		}
 	}
-	if len(cmp.Candidates) == 0 {
-		return nil, fmt.Errorf("no candidates kept for this epoch: keep the current model as a candidate first")
+	if len(here) == 0 {
+		return nil, fmt.Errorf("no candidates kept for epoch %d: keep the current model as a candidate first", epoch+1)
 	}
+	return b.compare(ctx, &Comparison{Epoch: epoch, Candidates: here}, progress)
+}
+
+// CompareAt compares every candidate at the epoch of model at: a
+// candidate kept there as it was kept, one kept at another epoch with its
+// composition (and inner zone) at at's photosphere, labelled "B (mix at
+// 7.5 d)" so that the figure says so.
+func (b *Bench) CompareAt(ctx context.Context, cands []Candidate, at Model, progress func(done, total int)) (*Comparison, error) {
+	if len(cands) == 0 {
+		return nil, fmt.Errorf("no candidates kept: keep the current model as a candidate first")
+	}
+	cmp := &Comparison{Epoch: at.Epoch}
+	for _, c := range cands {
+		if c.Epoch != at.Epoch {
+			c.Epoch, c.PhotosphereVelocity, c.Temperature, c.Preview = at.Epoch, at.PhotosphereVelocity, at.Temperature, at.Preview
+			c.Label = fmt.Sprintf("%s (mix at %g d)", c.Label, b.Data.Epochs[at.Epoch].Days)
+		}
+		cmp.Candidates = append(cmp.Candidates, c)
+	}
+	return b.compare(ctx, cmp, progress)
+}
+
+// compare synthesises cmp's candidates into cmp.Models.
+func (b *Bench) compare(ctx context.Context, cmp *Comparison, progress func(done, total int)) (*Comparison, error) {
 	for i, c := range cmp.Candidates {
 		ov, err := b.Compute(ctx, c.Model, 0)
 		if err != nil {

@@ -2,6 +2,7 @@ package core
 
 import (
 	"context"
+	"strings"
 	"testing"
 )
 
@@ -81,5 +82,48 @@ func TestCandidatesValidate(t *testing.T) {
 	}
 	if err := s.Validate(d); err == nil {
 		t.Errorf("%d candidates: accepted", len(s.Candidates))
+	}
+}
+
+// TestCandidateRows: each row names the elements whose fractions differ
+// between the candidates (in order of Z, with their normalised values),
+// not the shared ones; identical mixes say so; a lone candidate shows its
+// mix.
+func TestCandidateRows(t *testing.T) {
+	b := demoBench(t)
+	m := b.Data.StartModel(0)
+	a := Candidate{Label: "A", Model: m}
+	m.MassFractions = mustComp(t, "Ca=0.002,Se=0.25,Br=0.04,Kr=0.25,Rb=0.05,Y=0.002,Zr=0.008,Mo=0.05,Ru=0.06,Pd=0.05,Te=0.13,Xe=0.10785,Ce=4e-05,Nd=7e-05,Sm=2.5e-05,Eu=1.5e-05")
+	bb := Candidate{Label: "B", Model: m}
+	rows := CandidateRows(b.Data, []Candidate{a, bb})
+	if len(rows) != 2 || !strings.HasSuffix(rows[0], "Sr 0.03, Xe 0.0778") || !strings.HasSuffix(rows[1], "Sr 0, Xe 0.108") {
+		t.Errorf("rows %q", rows)
+	}
+	if strings.Contains(rows[0], "Kr") || !strings.HasPrefix(rows[0], "A · 1.5 d · ") {
+		t.Errorf("row %q names a shared element or lacks the epoch", rows[0])
+	}
+	if r := CandidateRows(b.Data, []Candidate{a, {Label: "C", Model: a.Model}}); !strings.HasSuffix(r[1], "same mix as the others") {
+		t.Errorf("identical mixes: %q", r)
+	}
+	if r := CandidateRows(b.Data, []Candidate{a}); !strings.Contains(r[0], "Sr") || !strings.Contains(r[0], "Kr") {
+		t.Errorf("lone candidate: %q", r)
+	}
+}
+
+// TestCompareAtAnotherEpoch: a candidate kept at epoch 1 is compared at
+// epoch 3 with its mix at the current model's photosphere, and labelled so.
+func TestCompareAtAnotherEpoch(t *testing.T) {
+	b := demoBench(t)
+	a := Candidate{Label: "A", Model: b.Data.StartModel(0)}
+	at := b.Data.StartModel(2)
+	at.Preview = true
+	cmp, err := b.CompareAt(context.Background(), []Candidate{a}, at, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := cmp.Candidates[0]
+	if cmp.Epoch != 2 || c.Epoch != 2 || c.PhotosphereVelocity != at.PhotosphereVelocity || c.MassFractions != a.MassFractions ||
+		!strings.Contains(c.Label, "mix at 7.5 d") || len(cmp.Models) != 1 || cmp.Models[0].N == 0 {
+		t.Errorf("comparison %+v", c)
 	}
 }

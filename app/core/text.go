@@ -2,6 +2,8 @@ package core
 
 import (
 	"fmt"
+	"math"
+	"slices"
 	"strings"
 
 	"broadline/linelists"
@@ -115,4 +117,70 @@ func ElementSymbol(z int) string {
 		return ""
 	}
 	return e.Symbol
+}
+
+// CandidateRows describes each candidate by what sets it apart from the
+// others: its label, epoch, photosphere, and the mass fractions of the
+// elements whose fractions differ between the candidates (by Z, with
+// their values; "same mix as the others" when none does), plus the inner
+// zone when the candidates differ there. A lone candidate shows its whole
+// mix.
+func CandidateRows(d *Dataset, cs []Candidate) []string {
+	fr := make([]map[string]float64, len(cs))
+	all := map[string]bool{}
+	for i, c := range cs {
+		fr[i] = map[string]float64{}
+		syms, x := c.MassFractions.Fractions()
+		for k, s := range syms {
+			fr[i][s] = x[k]
+			all[s] = true
+		}
+	}
+	// The elements whose fractions differ, in order of Z.
+	var differ []string
+	for s := range all {
+		for i := 1; i < len(cs); i++ {
+			a, b := fr[0][s], fr[i][s]
+			if math.Abs(a-b) > 1e-9*math.Max(a, b) {
+				differ = append(differ, s)
+				break
+			}
+		}
+	}
+	slices.SortFunc(differ, func(a, b string) int {
+		ea, _ := linelists.ElementBySymbol(a)
+		eb, _ := linelists.ElementBySymbol(b)
+		return ea.Z - eb.Z
+	})
+	zones := false
+	for _, c := range cs[min(1, len(cs)):] {
+		zones = zones || c.InnerMassFractions != cs[0].InnerMassFractions || c.ZoneBoundary != cs[0].ZoneBoundary
+	}
+	out := make([]string, len(cs))
+	for i, c := range cs {
+		var b strings.Builder
+		fmt.Fprintf(&b, "%s · %g d · %.3f c · %.0f K · ", c.Label, d.Epochs[c.Epoch].Days, c.PhotosphereVelocity, c.Temperature)
+		switch {
+		case len(cs) == 1:
+			b.WriteString(c.MassFractions.Text())
+		case len(differ) == 0:
+			b.WriteString("same mix as the others")
+		default:
+			for k, s := range differ {
+				if k > 0 {
+					b.WriteString(", ")
+				}
+				fmt.Fprintf(&b, "%s %.3g", s, fr[i][s])
+			}
+		}
+		if zones {
+			if c.HasZone() {
+				fmt.Fprintf(&b, " · inner zone to %s: %s", c.BoundaryText(), c.InnerMassFractions.Text())
+			} else {
+				b.WriteString(" · uniform")
+			}
+		}
+		out[i] = b.String()
+	}
+	return out
 }

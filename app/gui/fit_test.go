@@ -273,3 +273,52 @@ func texts(o fyne.CanvasObject) []string {
 	}
 	return out
 }
+
+// TestUnsavedCandidatesAndOverwrite: closing the window with candidates
+// not saved asks first (a dialog, the window stays); after a save it does
+// not; writing over an existing file asks first, a new file is written at
+// once.
+func TestUnsavedCandidatesAndOverwrite(t *testing.T) {
+	wb := cheapWorkbench(t)
+	wb.win.Resize(fyne.NewSize(1280, 800))
+	if wb.unsavedCandidates() {
+		t.Fatal("a fresh session has unsaved candidates")
+	}
+	if err := wb.keepCandidate(); err != nil {
+		t.Fatal(err)
+	}
+	if !wb.unsavedCandidates() {
+		t.Fatal("a kept candidate is not counted as unsaved")
+	}
+	wb.closeIntercept()
+	top := wb.win.Canvas().Overlays().Top()
+	if top == nil || !strings.Contains(strings.Join(texts(top), " "), "not saved") {
+		t.Fatalf("closing with an unsaved candidate: overlay %v", top)
+	}
+	wb.win.Canvas().Overlays().Remove(top)
+	path := filepath.Join(t.TempDir(), "s.json")
+	written := 0
+	wb.confirmOverwrite(path, func() { written++ })
+	if written != 1 || wb.win.Canvas().Overlays().Top() != nil {
+		t.Errorf("a new file: written %d times, overlay %v", written, wb.win.Canvas().Overlays().Top())
+	}
+	if err := os.WriteFile(path, []byte("{}"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	wb.confirmOverwrite(path, func() { written++ })
+	top = wb.win.Canvas().Overlays().Top()
+	if written != 1 || top == nil || !strings.Contains(strings.Join(texts(top), " "), "Replace") {
+		t.Errorf("an existing file: written %d times without asking, overlay %v", written, top)
+	}
+	wb.win.Canvas().Overlays().Remove(top)
+	if err := wb.sess.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	wb.savedCands = append([]core.Candidate(nil), wb.sess.Candidates...)
+	if wb.unsavedCandidates() {
+		t.Error("saved candidates still counted as unsaved")
+	}
+	if row := wb.candidateText(0); !strings.Contains(row, "A · 1.5 d") {
+		t.Errorf("candidate row %q", row)
+	}
+}

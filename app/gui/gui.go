@@ -7,6 +7,7 @@ import (
 	"image"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"sync"
@@ -110,6 +111,9 @@ type workbench struct {
 	// syncing is true while syncControls sets the controls from the
 	// session, so that their callbacks change nothing.
 	syncing bool
+	// savedCands are the candidates as last saved or opened: quitting
+	// with others asks first.
+	savedCands []core.Candidate
 	// note is a sentence the next model's status line starts with (what
 	// an epoch switch set), then cleared.
 	note    string
@@ -356,6 +360,8 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 			fyne.NewMenuItem("About the model…", func() { showModelHelp(wb.win) }),
 		),
 	))
+	wb.savedCands = slices.Clone(s.Candidates)
+	wb.win.SetCloseIntercept(wb.closeIntercept)
 	wb.syncControls()
 	wb.updateFeatures()
 	return wb
@@ -652,11 +658,14 @@ func (wb *workbench) saveDialog() {
 			if !ok {
 				return
 			}
-			if err := wb.sess.Save(path.Text); err != nil {
-				dialog.ShowError(err, wb.win)
-				return
-			}
-			wb.status.SetText("session saved to " + path.Text)
+			wb.confirmOverwrite(path.Text, func() {
+				if err := wb.sess.Save(path.Text); err != nil {
+					dialog.ShowError(err, wb.win)
+					return
+				}
+				wb.savedCands = slices.Clone(wb.sess.Candidates)
+				wb.status.SetText("session saved to " + path.Text)
+			})
 		}, wb.win)
 }
 
@@ -683,6 +692,7 @@ func (wb *workbench) openSession(path string) error {
 		return err
 	}
 	*wb.sess = *s
+	wb.savedCands = slices.Clone(s.Candidates)
 	wb.syncControls()
 	wb.updateFeatures()
 	wb.candList.Refresh()

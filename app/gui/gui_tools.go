@@ -5,6 +5,8 @@ import (
 	"errors"
 	"fmt"
 	"image"
+	"os"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -192,18 +194,13 @@ func (wb *workbench) keepCandidate() error {
 	return nil
 }
 
-// candidateText is a candidate's line in the list.
+// candidateText is a candidate's line in the list: what sets it apart
+// from the other candidates (core.CandidateRows).
 func (wb *workbench) candidateText(i int) string {
 	if i < 0 || i >= len(wb.sess.Candidates) {
 		return ""
 	}
-	c := wb.sess.Candidates[i]
-	mix := c.MassFractions.Text()
-	if c.HasZone() {
-		mix = fmt.Sprintf("%s; inside %.3f c: %s", mix, c.ZoneBoundary, c.InnerMassFractions.Text())
-	}
-	return fmt.Sprintf("%s · %g d · %.3f c · %.0f K · %s", c.Label, wb.bench.Data.Epochs[c.Epoch].Days,
-		c.PhotosphereVelocity, c.Temperature, mix)
+	return core.CandidateRows(wb.bench.Data, wb.sess.Candidates)[i]
 }
 
 // showCandidate makes candidate i the current model.
@@ -226,16 +223,17 @@ func (wb *workbench) removeCandidate(i int) {
 	wb.candList.Refresh()
 }
 
-// startComparison computes the candidates of the shown epoch off the UI
-// goroutine and shows their figure for export.
+// startComparison computes every candidate at the shown epoch off the UI
+// goroutine (those kept at another epoch with their mix at the current
+// photosphere) and shows their figure for export.
 func (wb *workbench) startComparison() {
-	ctx, gen := wb.begin(true, "computing the candidates of this epoch…")
+	ctx, gen := wb.begin(true, "computing the candidates at this epoch…")
 	cands := append([]core.Candidate(nil), wb.sess.Candidates...)
-	epoch, unit := wb.sess.Epoch, core.UnitOf(wb.sess.WavelengthUnit)
+	at, unit := wb.sess.Model, core.UnitOf(wb.sess.WavelengthUnit)
 	go func() {
 		var shown *figure.Captioned
 		var img image.Image
-		cmp, err := wb.bench.Compare(ctx, cands, epoch, wb.progressFunc(gen))
+		cmp, err := wb.bench.CompareAt(ctx, cands, at, wb.progressFunc(gen))
 		if err == nil {
 			shown, err = figure.Comparison(wb.bench, cmp, unit)
 		}
@@ -262,9 +260,11 @@ func (wb *workbench) showComparison(shown *figure.Captioned, img image.Image) {
 	path := widget.NewEntry()
 	path.SetText(inWorkDir("comparison.png"))
 	export := widget.NewButton("Export", func() {
-		if err := wb.exportComparison(path.Text); err != nil {
-			dialog.ShowError(err, wb.win)
-		}
+		wb.confirmOverwrite(path.Text, func() {
+			if err := wb.exportComparison(path.Text); err != nil {
+				dialog.ShowError(err, wb.win)
+			}
+		})
 	})
 	bar := container.NewBorder(nil, nil, widget.NewLabel("File (.png, .svg or .pdf)"), export, path)
 	dialog.ShowCustom("Candidate compositions", "Close", container.NewBorder(nil, bar, nil, nil, fig), wb.win)
@@ -307,9 +307,11 @@ func (wb *workbench) exportDialog() {
 			if !ok {
 				return
 			}
-			if err := wb.exportCurrent(path.Text); err != nil {
-				dialog.ShowError(err, wb.win)
-			}
+			wb.confirmOverwrite(path.Text, func() {
+				if err := wb.exportCurrent(path.Text); err != nil {
+					dialog.ShowError(err, wb.win)
+				}
+			})
 		}, wb.win)
 }
 
@@ -399,4 +401,39 @@ func (wb *workbench) finishIdentify(gen int, s core.Model, attr []*synth.Attribu
 		wb.features.Refresh()
 		wb.status.SetText(fmt.Sprintf("features identified with the model at v_ph = %.3f c, T = %.0f K (absorption-only shares; a hypothesis to check)", s.PhotosphereVelocity, s.Temperature))
 	})
+}
+
+// confirmOverwrite calls write at once when nothing is at path, and after
+// the analyst agrees when a file is there already.
+func (wb *workbench) confirmOverwrite(path string, write func()) {
+	if _, err := os.Stat(path); err != nil {
+		write()
+		return
+	}
+	dialog.ShowConfirm("Replace the file?", path+" exists already. Replace it?", func(ok bool) {
+		if ok {
+			write()
+		}
+	}, wb.win)
+}
+
+// unsavedCandidates reports whether the candidates differ from those last
+// saved or opened.
+func (wb *workbench) unsavedCandidates() bool {
+	return !slices.Equal(wb.sess.Candidates, wb.savedCands)
+}
+
+// closeIntercept asks before the window closes with candidates not saved.
+func (wb *workbench) closeIntercept() {
+	if !wb.unsavedCandidates() {
+		wb.win.Close()
+		return
+	}
+	dialog.ShowConfirm("Quit without saving?",
+		fmt.Sprintf("%d candidates are not saved. Quit anyway? (Session ▸ Save session… keeps them.)", len(wb.sess.Candidates)),
+		func(ok bool) {
+			if ok {
+				wb.win.Close()
+			}
+		}, wb.win)
 }
