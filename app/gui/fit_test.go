@@ -322,3 +322,22 @@ func TestUnsavedCandidatesAndOverwrite(t *testing.T) {
 		t.Errorf("candidate row %q", row)
 	}
 }
+
+// TestFeaturesDividerMovesBothWays: at 1280×800 the divider between the
+// spectrum and the features table can give most of the height to either.
+func TestFeaturesDividerMovesBothWays(t *testing.T) {
+	wb := demoWorkbench(t)
+	wb.done = func(*core.Overlay, error) {}
+	wb.win.Resize(fyne.NewSize(1280, 800))
+	for _, c := range []struct {
+		offset     float64
+		plotTaller bool
+	}{{0.2, false}, {0.85, true}} {
+		wb.split.SetOffset(c.offset)
+		wb.win.Canvas().Capture()
+		p, tb := wb.plotCard.Size().Height, wb.tableCard.Size().Height
+		if (p > 1.5*tb) != c.plotTaller || (tb > 1.5*p) == c.plotTaller {
+			t.Errorf("divider at %.2f: spectrum %.0f px, table %.0f px high", c.offset, p, tb)
+		}
+	}
+}

@@ -111,6 +111,10 @@ type workbench struct {
 	// syncing is true while syncControls sets the controls from the
 	// session, so that their callbacks change nothing.
 	syncing bool
+	// plotCard and tableCard are the spectrum and features panels, split
+	// by split (tests move its divider).
+	plotCard, tableCard *widget.Card
+	split               *container.Split
 	// savedCands are the candidates as last saved or opened: quitting
 	// with others asks first.
 	savedCands []core.Candidate
@@ -277,7 +281,9 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 
 	wb.figure = canvas.NewImageFromImage(image.NewRGBA(image.Rect(0, 0, 1, 1)))
 	wb.figure.FillMode = canvas.ImageFillContain
-	wb.figure.SetMinSize(fyne.NewSize(640, 360))
+	// Small enough that the divider above the features table moves both
+	// ways at 1280×800; the figure keeps its aspect (ImageFillContain).
+	wb.figure.SetMinSize(fyne.NewSize(480, 120))
 	knockOpts, knockZ := knockOutChoices(b)
 	wb.knockZ = knockZ
 	wb.knockSel = widget.NewSelect(knockOpts, func(v string) {
@@ -343,6 +349,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 
 	right := container.NewVSplit(plot, table)
 	right.Offset = 0.64
+	wb.plotCard, wb.tableCard, wb.split = plot, table, right
 	split := container.NewHSplit(model, right)
 	split.Offset = 0.26
 	wb.win.SetContent(split)
