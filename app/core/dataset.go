@@ -55,6 +55,72 @@ type Epoch struct {
 	// Read holds how to read File when the file alone does not say (nil:
 	// everything from the file).
 	Read *EpochRead `json:"read,omitempty"`
+	// Prepare, when not nil, brings the spectrum as read to the model's
+	// frame before it is compared (as broadline prep does): dereddening,
+	// telluric bands flagged, rest frame. Nil: the file is prepared already.
+	Prepare *Preparation `json:"prepare,omitempty"`
+}
+
+// Preparation is how a spectrum is brought to the model's frame: Milky Way
+// dust removed with the law (ccm89, the default, or f99) at E(B−V) and R_V
+// (default 3.1), the telluric bands of ground-based spectra flagged (never
+// removed), then the wavelengths divided by 1 + Redshift.
+type Preparation struct {
+	EBV          float64 `json:"ebv,omitempty"`
+	RV           float64 `json:"rv,omitempty"`
+	Law          string  `json:"law,omitempty"`
+	MaskTelluric bool    `json:"mask_telluric,omitempty"`
+	Redshift     float64 `json:"redshift,omitempty"`
+}
+
+// Check validates the preparation, naming the key at fault.
+func (p *Preparation) Check() error {
+	if p == nil {
+		return nil
+	}
+	switch {
+	case !(p.EBV >= 0 && p.EBV <= 10):
+		return fmt.Errorf("prepare.ebv %g: want 0–10 mag", p.EBV)
+	case p.RV != 0 && !(p.RV >= 1 && p.RV <= 10):
+		return fmt.Errorf("prepare.rv %g: want 1–10 (or leave it out for 3.1)", p.RV)
+	case !(p.Redshift > -0.01 && p.Redshift < 10):
+		return fmt.Errorf("prepare.redshift %g: want −0.01 < z < 10", p.Redshift)
+	}
+	if p.Law != "" {
+		if _, err := spectra.ParseExtinctionLaw(p.Law); err != nil {
+			return fmt.Errorf("prepare.law %q: want ccm89 or f99", p.Law)
+		}
+	}
+	return nil
+}
+
+// apply prepares s in place; each step is recorded in its history.
+func (p *Preparation) apply(s *spectra.Spectrum) error {
+	if p == nil {
+		return nil
+	}
+	if p.EBV > 0 {
+		law := spectra.CCM89
+		if p.Law != "" {
+			law, _ = spectra.ParseExtinctionLaw(p.Law)
+		}
+		rv := p.RV
+		if rv == 0 {
+			rv = 3.1
+		}
+		if _, err := s.Deredden(law, p.EBV, rv); err != nil {
+			return fmt.Errorf("prepare: %w", err)
+		}
+	}
+	if p.MaskTelluric {
+		s.MaskTelluric()
+	}
+	if p.Redshift != 0 {
+		if err := s.ToRestFrame(p.Redshift); err != nil {
+			return fmt.Errorf("prepare: %w", err)
+		}
+	}
+	return nil
 }
 
 // EpochRead are the read options of one epoch's spectrum in a dataset
@@ -181,6 +247,9 @@ func (d *Dataset) Check() error {
 		if err := e.Read.Check(); err != nil {
 			return fmt.Errorf("epochs[%d].%w", i+1, err)
 		}
+		if err := e.Prepare.Check(); err != nil {
+			return fmt.Errorf("epochs[%d].%w", i+1, err)
+		}
 		m := d.StartModel(i)
 		if err := d.Ejecta(m).Validate(); err != nil {
 			return fmt.Errorf("epochs[%d] (%s): %w", i+1, e.File, err)
@@ -282,32 +351,47 @@ func demoDataset() (*Dataset, *demogen.Scenario, error) {
 func readSpectra(d *Dataset, read func(name string, opt spectra.ReadOptions) (*spectra.Spectrum, error)) ([]*spectra.Spectrum, []string, error) {
 	var out []*spectra.Spectrum
 	var warn []string
-	for i, e := range d.Epochs {
-		s, err := read(e.File, d.ReadOptions(i))
+	for i := range d.Epochs {
+		s, w, err := readEpoch(d, i, read)
 		if err != nil {
-			return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+			return nil, nil, err
 		}
-		if s.Uncertainty == nil {
-			return nil, nil, fmt.Errorf("epochs[%d]: %s has no uncertainty column; χ² needs one (name it with read.unc_column)", i+1, e.File)
-		}
-		at := fmt.Sprintf("epochs[%d] (%s): ", i+1, e.File)
-		if s.Meta.Read != nil {
-			for _, w := range s.Meta.Read.Warnings {
-				warn = append(warn, at+w)
-			}
-		}
-		switch u := s.Meta.FluxUnit; {
-		case u.PerFrequency():
-			if err := s.ConvertFlux(spectra.FluxPerAngstrom); err != nil {
-				return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
-			}
-			warn = append(warn, at+fmt.Sprintf("flux in %v converted to erg/s/cm2/A (F_λ = F_ν c/λ²) for the comparison with the model", u))
-		case u == spectra.FluxUnknown || u == spectra.FluxNormalized:
-			warn = append(warn, at+fmt.Sprintf("flux unit %v: compared with the model's erg/s/cm2/A as if it were in that unit (give read.flux_unit)", u))
-		}
-		out = append(out, s)
+		out, warn = append(out, s), append(warn, w...)
 	}
 	return out, warn, nil
+}
+
+// readEpoch reads and prepares the spectrum of epoch i of d, with the
+// warnings to show.
+func readEpoch(d *Dataset, i int, read func(name string, opt spectra.ReadOptions) (*spectra.Spectrum, error)) (*spectra.Spectrum, []string, error) {
+	var warn []string
+	e := d.Epochs[i]
+	s, err := read(e.File, d.ReadOptions(i))
+	if err != nil {
+		return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+	}
+	if s.Uncertainty == nil {
+		return nil, nil, fmt.Errorf("epochs[%d]: %s has no uncertainty column; χ² needs one (name it with read.unc_column)", i+1, e.File)
+	}
+	if err := e.Prepare.apply(s); err != nil {
+		return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+	}
+	at := fmt.Sprintf("epochs[%d] (%s): ", i+1, e.File)
+	if s.Meta.Read != nil {
+		for _, w := range s.Meta.Read.Warnings {
+			warn = append(warn, at+w)
+		}
+	}
+	switch u := s.Meta.FluxUnit; {
+	case u.PerFrequency():
+		if err := s.ConvertFlux(spectra.FluxPerAngstrom); err != nil {
+			return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+		}
+		warn = append(warn, at+fmt.Sprintf("flux in %v converted to erg/s/cm2/A (F_λ = F_ν c/λ²) for the comparison with the model", u))
+	case u == spectra.FluxUnknown || u == spectra.FluxNormalized:
+		warn = append(warn, at+fmt.Sprintf("flux unit %v: compared with the model's erg/s/cm2/A as if it were in that unit (give read.flux_unit)", u))
+	}
+	return s, warn, nil
 }
 
 // OpenDataset reads the dataset file at path, its spectra and its line

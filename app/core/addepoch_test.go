@@ -1,0 +1,66 @@
+package core
+
+import (
+	"context"
+	"math"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestWithEpochAndSaveDataset: a spectrum added from a file becomes a new
+// epoch — read with its options, prepared (here: a rest-frame shift), the
+// bench marked unsaved; saved as a dataset file (the demo's embedded files
+// written beside it), it reopens with the same epochs and spectra, and the
+// bench then carries the file's name.
+func TestWithEpochAndSaveDataset(t *testing.T) {
+	b := demoBench(t)
+	ex, err := WriteExample(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	file := filepath.Join(filepath.Dir(ex), "spectra", filepath.Base(b.Data.Epochs[2].File))
+	nb, err := b.WithEpoch(Epoch{File: file, Days: 7.5, Prepare: &Preparation{Redshift: 0.01}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(nb.Data.Epochs) != 4 || len(b.Data.Epochs) != 3 || !nb.Unsaved() || b.Unsaved() {
+		t.Fatalf("epochs %d (was %d), unsaved %v", len(nb.Data.Epochs), len(b.Data.Epochs), nb.Unsaved())
+	}
+	got, orig := nb.Observed[3], b.Observed[2]
+	if got.Len() != orig.Len() || math.Abs(got.Wavelength[0]*1.01/orig.Wavelength[0]-1) > 1e-12 {
+		t.Errorf("added epoch: λ₀ %g (from %g), %d samples", got.Wavelength[0], orig.Wavelength[0], got.Len())
+	}
+	if ep := nb.Data.Epochs[3]; ep.PhotosphereVelocity != b.Data.Epochs[2].PhotosphereVelocity || !filepath.IsAbs(ep.File) {
+		t.Errorf("added epoch %+v: want the last epoch's photosphere and an absolute path", ep)
+	}
+	out := filepath.Join(t.TempDir(), "mine.json")
+	if err := nb.SaveDataset(out); err != nil {
+		t.Fatal(err)
+	}
+	if nb.Name != out || nb.Unsaved() {
+		t.Errorf("after saving the bench is named %q", nb.Name)
+	}
+	rb, err := OpenDataset(context.Background(), out, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rb.Data.Epochs) != 4 || rb.Observed[3].Wavelength[0] != got.Wavelength[0] || rb.Observed[0].Flux[5] != b.Observed[0].Flux[5] {
+		t.Errorf("reopened: %d epochs", len(rb.Data.Epochs))
+	}
+	if rb.Data.Epochs[3].Prepare == nil || rb.Data.Epochs[3].Prepare.Redshift != 0.01 {
+		t.Errorf("the preparation was not saved: %+v", rb.Data.Epochs[3])
+	}
+	for _, bad := range []Epoch{
+		{File: file, Days: 0},
+		{File: file, Days: 7.5, Prepare: &Preparation{EBV: -1}},
+		{File: file, Days: 7.5, Prepare: &Preparation{Law: "x"}},
+		{File: filepath.Join(t.TempDir(), "none.txt"), Days: 7.5},
+	} {
+		if _, err := b.WithEpoch(bad); err == nil {
+			t.Errorf("epoch %+v accepted", bad)
+		} else if strings.Contains(err.Error(), "json:") {
+			t.Errorf("message leaks internals: %v", err)
+		}
+	}
+}
