@@ -341,3 +341,53 @@ func TestFeaturesDividerMovesBothWays(t *testing.T) {
 		}
 	}
 }
+
+// TestAddSpectrumForm: the form refuses a missing file or days and bad
+// numbers, naming the field; a filled form adds the spectrum as a new
+// epoch shown at once (composition kept, on the new epoch), and the
+// dataset saves and the session then saves too.
+func TestAddSpectrumForm(t *testing.T) {
+	wb := cheapWorkbench(t)
+	f := newSpectrumForm()
+	if _, err := f.epoch(); err == nil || !strings.Contains(err.Error(), "file") {
+		t.Errorf("no file: %v", err)
+	}
+	ex, err := core.WriteExample(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.file.SetText(filepath.Join(filepath.Dir(ex), wb.bench.Data.Epochs[2].File))
+	if _, err := f.epoch(); err == nil || !strings.Contains(err.Error(), "days") {
+		t.Errorf("no days: %v", err)
+	}
+	f.days.SetText("7.5")
+	f.ebv.SetText("abc")
+	if _, err := f.epoch(); err == nil || !strings.Contains(err.Error(), "E(B−V)") {
+		t.Errorf("bad E(B−V): %v", err)
+	}
+	f.ebv.SetText("0.05")
+	f.telluric.SetChecked(true)
+	f.mask.SetSelectedIndex(2)
+	e, err := f.epoch()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if e.Prepare == nil || e.Prepare.EBV != 0.05 || e.Prepare.Law != "ccm89" || !e.Prepare.MaskTelluric || e.Read == nil || !e.Read.IgnoreMask {
+		t.Fatalf("epoch %+v", e)
+	}
+	comp := wb.sess.MassFractions
+	nw := waitJob(t, wb, func() { wb.startAddEpoch(e) }).(*workbench)
+	if len(nw.bench.Data.Epochs) != 4 || nw.sess.Epoch != 3 || nw.sess.MassFractions != comp || !nw.bench.Unsaved() {
+		t.Fatalf("after adding: %d epochs, shown %d, unsaved %v", len(nw.bench.Data.Epochs), nw.sess.Epoch, nw.bench.Unsaved())
+	}
+	if got := waitDone(t, nw); got.N < 100 {
+		t.Errorf("the new epoch compared %d samples", got.N)
+	}
+	out := filepath.Join(t.TempDir(), "mine.json")
+	if err := nw.bench.SaveDataset(out); err != nil {
+		t.Fatal(err)
+	}
+	if nw.bench.Unsaved() {
+		t.Error("still unsaved after saving")
+	}
+}

@@ -356,6 +356,8 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.win.SetMainMenu(fyne.NewMainMenu(
 		fyne.NewMenu("Session",
 			fyne.NewMenuItem("Open dataset…", func() { wb.openDatasetDialog() }),
+			fyne.NewMenuItem("Add a spectrum…", func() { wb.addSpectrumDialog() }),
+			fyne.NewMenuItem("Save dataset…", func() { wb.saveDatasetDialog() }),
 			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
 		),
@@ -657,6 +659,10 @@ func (wb *workbench) stop() {
 // saveDialog asks for a path and saves the session there atomically (a
 // temporary file renamed over the old one, so a failed save loses nothing).
 func (wb *workbench) saveDialog() {
+	if wb.bench.Unsaved() {
+		dialog.ShowError(errors.New("the dataset has a spectrum added since it was read: save it first (Session ▸ Save dataset…), so that the session can be opened again"), wb.win)
+		return
+	}
 	path := widget.NewEntry()
 	path.SetText(inWorkDir("session.json"))
 	dialog.ShowForm("Save session", "Save", "Cancel",

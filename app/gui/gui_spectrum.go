@@ -1,0 +1,239 @@
+package gui
+
+import (
+	"errors"
+	"fmt"
+	"strconv"
+	"strings"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/widget"
+
+	"broadline/app/core"
+)
+
+// The Add a spectrum… form: how to read a spectrum file (the dataset
+// format's per-epoch read options) and prepare it (dereddening, telluric
+// bands, rest frame), its days since explosion; the spectrum becomes a new
+// epoch of the shown dataset (core.Bench.WithEpoch), and Save dataset…
+// writes the result as a dataset file.
+
+// spectrumForm holds the widgets of the Add a spectrum… form.
+type spectrumForm struct {
+	file, days, hdu, band, row        *widget.Entry
+	waveCol, fluxCol, uncCol, maskCol *widget.Entry
+	waveUnit, fluxUnit                *widget.Entry
+	ebv, rv, redshift                 *widget.Entry
+	medium, mask, law                 *widget.Select
+	mergeRows, telluric               *widget.Check
+}
+
+// The choices of the form's selectors.
+var (
+	mediumChoices = []string{"as the file says (else vacuum)", "air", "vacuum"}
+	maskChoices   = []string{"non-zero = bad (default)", "1 = good", "ignore the mask"}
+	lawChoices    = []string{"ccm89", "f99"}
+)
+
+func newSpectrumForm() *spectrumForm {
+	e := func(hint string) *widget.Entry {
+		w := widget.NewEntry()
+		w.SetPlaceHolder(hint)
+		return w
+	}
+	f := &spectrumForm{
+		file: e("path of a FITS or text spectrum (.gz, .bz2 too)"), days: e("days since explosion (required)"),
+		hdu: e("FITS extension (default: the first with a spectrum)"), band: e("image row band, from 1"), row: e("table row, from 1"),
+		waveCol: e("wavelength column"), fluxCol: e("flux column"), uncCol: e("uncertainty column"), maskCol: e("mask column"),
+		waveUnit: e("e.g. Angstrom, nm, um (if the file does not say)"), fluxUnit: e("e.g. 1e-17 erg/s/cm2/Angstrom, mJy"),
+		ebv: e("Milky Way E(B−V), mag (0: none)"), rv: e("R_V (default 3.1)"), redshift: e("z (0: already rest frame)"),
+		medium: widget.NewSelect(mediumChoices, nil), mask: widget.NewSelect(maskChoices, nil), law: widget.NewSelect(lawChoices, nil),
+		mergeRows: widget.NewCheck("merge table rows (segments)", nil), telluric: widget.NewCheck("flag the telluric bands (ground-based spectra)", nil),
+	}
+	f.medium.SetSelectedIndex(0)
+	f.mask.SetSelectedIndex(0)
+	f.law.SetSelectedIndex(0)
+	return f
+}
+
+// epoch reads the form into a dataset epoch, naming the field at fault.
+func (f *spectrumForm) epoch() (core.Epoch, error) {
+	num := func(name string, w *widget.Entry) (float64, error) {
+		t := strings.TrimSpace(w.Text)
+		if t == "" {
+			return 0, nil
+		}
+		x, err := strconv.ParseFloat(t, 64)
+		if err != nil {
+			return 0, fmt.Errorf("%s %q: not a number", name, t)
+		}
+		return x, nil
+	}
+	whole := func(name string, w *widget.Entry) (int, error) {
+		t := strings.TrimSpace(w.Text)
+		if t == "" {
+			return 0, nil
+		}
+		n, err := strconv.Atoi(t)
+		if err != nil || n < 0 {
+			return 0, fmt.Errorf("%s %q: want a whole number ≥ 0", name, t)
+		}
+		return n, nil
+	}
+	var e core.Epoch
+	e.File = strings.TrimSpace(f.file.Text)
+	if e.File == "" {
+		return e, errors.New("file: name the spectrum to add")
+	}
+	var errs []error
+	var err error
+	e.Days, err = num("days", f.days)
+	errs = append(errs, err)
+	if err == nil && !(e.Days > 0) {
+		errs = append(errs, errors.New("days: give the time since explosion in days (the model needs it; an MJD is not taken for it)"))
+	}
+	r := &core.EpochRead{WaveColumn: strings.TrimSpace(f.waveCol.Text), FluxColumn: strings.TrimSpace(f.fluxCol.Text),
+		UncColumn: strings.TrimSpace(f.uncCol.Text), MaskColumn: strings.TrimSpace(f.maskCol.Text),
+		WaveUnit: strings.TrimSpace(f.waveUnit.Text), FluxUnit: strings.TrimSpace(f.fluxUnit.Text), MergeRows: f.mergeRows.Checked}
+	if strings.TrimSpace(f.hdu.Text) != "" {
+		n, err := whole("HDU", f.hdu)
+		errs = append(errs, err)
+		r.HDU = &n
+	}
+	r.Band, err = whole("band", f.band)
+	errs = append(errs, err)
+	r.Row, err = whole("row", f.row)
+	errs = append(errs, err)
+	switch f.medium.SelectedIndex() {
+	case 1:
+		r.Medium = "air"
+	case 2:
+		r.Medium = "vacuum"
+	}
+	switch f.mask.SelectedIndex() {
+	case 1:
+		r.MaskGood = true
+	case 2:
+		r.IgnoreMask = true
+	}
+	if *r != (core.EpochRead{}) {
+		e.Read = r
+	}
+	p := &core.Preparation{MaskTelluric: f.telluric.Checked}
+	p.EBV, err = num("E(B−V)", f.ebv)
+	errs = append(errs, err)
+	p.RV, err = num("R_V", f.rv)
+	errs = append(errs, err)
+	p.Redshift, err = num("redshift", f.redshift)
+	errs = append(errs, err)
+	if p.EBV > 0 {
+		p.Law = f.law.Selected
+	}
+	if *p != (core.Preparation{}) {
+		e.Prepare = p
+	}
+	if err := errors.Join(errs...); err != nil {
+		return e, err
+	}
+	if err := e.Read.Check(); err != nil {
+		return e, err
+	}
+	return e, e.Prepare.Check()
+}
+
+// addSpectrumDialog asks for a spectrum and how to read and prepare it.
+func (wb *workbench) addSpectrumDialog() {
+	f := newSpectrumForm()
+	note := widget.NewLabel("The spectrum becomes a new epoch of this dataset, with its line lists, ejecta and distance.\n" +
+		"Leave a field empty to take it from the file. Session ▸ Save dataset… keeps the result as a dataset file.")
+	items := []*widget.FormItem{
+		widget.NewFormItem("File", f.file), widget.NewFormItem("Days since explosion", f.days),
+		widget.NewFormItem("FITS HDU", f.hdu), widget.NewFormItem("Band / row", container.NewGridWithColumns(3, f.band, f.row, f.mergeRows)),
+		widget.NewFormItem("Columns", container.NewGridWithColumns(4, f.waveCol, f.fluxCol, f.uncCol, f.maskCol)),
+		widget.NewFormItem("Units", container.NewGridWithColumns(2, f.waveUnit, f.fluxUnit)),
+		widget.NewFormItem("Wavelengths in", f.medium), widget.NewFormItem("Mask", f.mask),
+		widget.NewFormItem("Dereddening", container.NewGridWithColumns(3, f.ebv, f.rv, f.law)),
+		widget.NewFormItem("Telluric bands", f.telluric), widget.NewFormItem("Redshift", f.redshift),
+		widget.NewFormItem("", note),
+	}
+	d := dialog.NewForm("Add a spectrum", "Add", "Cancel", items, func(ok bool) {
+		if !ok {
+			return
+		}
+		e, err := f.epoch()
+		if err != nil {
+			dialog.ShowError(err, wb.win)
+			return
+		}
+		wb.startAddEpoch(e)
+	}, wb.win)
+	d.Resize(fyne.NewSize(1000, 640))
+	d.Show()
+}
+
+// startAddEpoch reads and prepares epoch e's spectrum off the UI goroutine;
+// the window then shows the dataset with it, on the new epoch, the current
+// composition kept. A file that cannot be read leaves everything as it was
+// and says why.
+func (wb *workbench) startAddEpoch(e core.Epoch) {
+	_, gen := wb.begin(true, "reading "+e.File+"…") // a read is quick: nothing to cancel
+	go func() {
+		nb, err := wb.bench.WithEpoch(e)
+		fyne.Do(func() {
+			if !wb.end(true, gen) {
+				return
+			}
+			if err != nil {
+				wb.showJobError(err)
+				dialog.ShowError(err, wb.win)
+				if wb.jobDone != nil {
+					wb.jobDone(nil, err)
+				}
+				return
+			}
+			s := *wb.sess
+			s.Dataset = nb.Name
+			s.Candidates = append([]core.Candidate(nil), s.Candidates...)
+			if _, err := s.SwitchEpoch(nb.Data, len(nb.Data.Epochs)-1); err != nil {
+				wb.showJobError(err)
+				return
+			}
+			nw := newWorkbenchIn(wb.win, nb, &s)
+			nw.done, nw.jobDone = wb.done, wb.jobDone
+			nw.note = fmt.Sprintf("added %s as epoch %d (%g d); Session ▸ Save dataset… keeps it", e.File, len(nb.Data.Epochs), e.Days)
+			for _, w := range nb.LoadWarnings[len(wb.bench.LoadWarnings):] {
+				nw.note += "\n• " + w
+			}
+			nw.recompute()
+			if wb.jobDone != nil {
+				wb.jobDone(nw, nil)
+			}
+		})
+	}()
+}
+
+// saveDatasetDialog asks where to write the shown dataset as a file.
+func (wb *workbench) saveDatasetDialog() {
+	path := widget.NewEntry()
+	path.SetText(inWorkDir("dataset.json"))
+	dialog.ShowForm("Save dataset", "Save", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("Dataset file", path),
+			widget.NewFormItem("", widget.NewLabel("The dataset's files are named by absolute paths (the demo's are written beside it).")),
+		},
+		func(ok bool) {
+			if !ok {
+				return
+			}
+			wb.confirmOverwrite(path.Text, func() {
+				if err := wb.bench.SaveDataset(path.Text); err != nil {
+					dialog.ShowError(err, wb.win)
+					return
+				}
+				wb.sess.Dataset = wb.bench.Name
+				wb.status.SetText("dataset saved to " + wb.bench.Name)
+			})
+		}, wb.win)
+}
