@@ -3,6 +3,7 @@ package core
 import (
 	"encoding/json"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path"
@@ -126,4 +127,36 @@ func (b *Bench) SaveDataset(file string) error {
 	}
 	b.Name = abs
 	return nil
+}
+
+// JSONKind is what a JSON file of ours holds, as SniffJSON finds it.
+type JSONKind int
+
+// The kinds of file SniffJSON tells apart.
+const (
+	OtherFile   JSONKind = iota // not JSON, or not one of ours
+	SessionFile                 // a saved session (has "dataset")
+	DatasetFile                 // a dataset file (has "epochs")
+)
+
+// SniffJSON tells a saved session from a dataset file by its top-level
+// keys (reading at most 1 MiB), and anything else — a spectrum, a line
+// list — as OtherFile.
+func SniffJSON(path string) JSONKind {
+	f, err := os.Open(path)
+	if err != nil {
+		return OtherFile
+	}
+	defer f.Close()
+	var keys map[string]json.RawMessage
+	if json.NewDecoder(io.LimitReader(f, maxDatasetBytes)).Decode(&keys) != nil {
+		return OtherFile
+	}
+	switch {
+	case keys["dataset"] != nil && keys["version"] != nil:
+		return SessionFile
+	case keys["epochs"] != nil:
+		return DatasetFile
+	}
+	return OtherFile
 }

@@ -3,6 +3,7 @@ package core
 import (
 	"context"
 	"math"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -62,5 +63,30 @@ func TestWithEpochAndSaveDataset(t *testing.T) {
 		} else if strings.Contains(err.Error(), "json:") {
 			t.Errorf("message leaks internals: %v", err)
 		}
+	}
+}
+
+// TestSniffJSON tells sessions from dataset files from anything else.
+func TestSniffJSON(t *testing.T) {
+	dir := t.TempDir()
+	for name, c := range map[string]struct {
+		text string
+		want JSONKind
+	}{
+		"s.json": {`{"version":1,"dataset":"demo","epoch":0}`, SessionFile},
+		"d.json": {`{"object":"x","epochs":[]}`, DatasetFile},
+		"x.txt":  {"5000 1e-17 1e-18\n", OtherFile},
+		"e.json": {`[1,2]`, OtherFile},
+	} {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(c.text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if got := SniffJSON(p); got != c.want {
+			t.Errorf("%s: %v, want %v", name, got, c.want)
+		}
+	}
+	if SniffJSON(filepath.Join(dir, "none")) != OtherFile {
+		t.Error("a missing file is not OtherFile")
 	}
 }

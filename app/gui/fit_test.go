@@ -13,6 +13,7 @@ import (
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/canvas"
+	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/widget"
 
@@ -389,5 +390,39 @@ func TestAddSpectrumForm(t *testing.T) {
 	}
 	if nw.bench.Unsaved() {
 		t.Error("still unsaved after saving")
+	}
+}
+
+// TestDropFiles: a session dropped onto the window opens with its dataset,
+// a dataset file opens, a spectrum opens the Add a spectrum… form with
+// its path filled in, and two files at once are refused with a message.
+func TestDropFiles(t *testing.T) {
+	wb := cheapWorkbench(t)
+	wb.win.Resize(fyne.NewSize(1280, 800))
+	wb.done = func(*core.Overlay, error) {}
+	sess := filepath.Join(t.TempDir(), "s.json")
+	s := core.NewSession(wb.bench)
+	s.Temperature = 4321
+	if err := s.Save(sess); err != nil {
+		t.Fatal(err)
+	}
+	nw := waitJob(t, wb, func() { wb.dropped(fyne.Position{}, []fyne.URI{storage.NewFileURI(sess)}) }).(*workbench)
+	if nw.sess.Temperature != 4321 || nw.bench.Name != wb.bench.Name {
+		t.Errorf("dropped session: T = %g, dataset %q", nw.sess.Temperature, nw.bench.Name)
+	}
+	nw2 := waitJob(t, nw, func() { nw.dropped(fyne.Position{}, []fyne.URI{storage.NewFileURI(nw.bench.Name)}) }).(*workbench)
+	if nw2.bench.Name != nw.bench.Name || nw2.sess.Temperature == 4321 {
+		t.Errorf("dropped dataset: %q, T %g (want a fresh session)", nw2.bench.Name, nw2.sess.Temperature)
+	}
+	spec := filepath.Join(filepath.Dir(nw2.bench.Name), nw2.bench.Data.Epochs[0].File)
+	nw2.dropped(fyne.Position{}, []fyne.URI{storage.NewFileURI(spec)})
+	top := nw2.win.Canvas().Overlays().Top()
+	if top == nil || !strings.Contains(strings.Join(texts(top), " "), "Add a spectrum") || !strings.Contains(strings.Join(texts(top), " "), filepath.Base(spec)) {
+		t.Fatalf("dropped spectrum: overlay %v", top)
+	}
+	nw2.win.Canvas().Overlays().Remove(top)
+	nw2.dropped(fyne.Position{}, []fyne.URI{storage.NewFileURI(spec), storage.NewFileURI(sess)})
+	if !strings.Contains(nw2.status.Text, "one at a time") {
+		t.Errorf("two files: status %q", nw2.status.Text)
 	}
 }

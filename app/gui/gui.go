@@ -371,6 +371,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	))
 	wb.savedCands = slices.Clone(s.Candidates)
 	wb.win.SetCloseIntercept(wb.closeIntercept)
+	wb.win.SetOnDropped(wb.dropped)
 	wb.syncControls()
 	wb.updateFeatures()
 	return wb

@@ -144,8 +144,12 @@ func (f *spectrumForm) epoch() (core.Epoch, error) {
 }
 
 // addSpectrumDialog asks for a spectrum and how to read and prepare it.
-func (wb *workbench) addSpectrumDialog() {
+func (wb *workbench) addSpectrumDialog() { wb.addSpectrumDialogFor("") }
+
+// addSpectrumDialogFor is addSpectrumDialog with the file filled in.
+func (wb *workbench) addSpectrumDialogFor(file string) {
 	f := newSpectrumForm()
+	f.file.SetText(file)
 	note := widget.NewLabel("The spectrum becomes a new epoch of this dataset, with its line lists, ejecta and distance.\n" +
 		"Leave a field empty to take it from the file. Session ▸ Save dataset… keeps the result as a dataset file.")
 	items := []*widget.FormItem{
@@ -236,4 +240,57 @@ func (wb *workbench) saveDatasetDialog() {
 				wb.status.SetText("dataset saved to " + wb.bench.Name)
 			})
 		}, wb.win)
+}
+
+// dropped opens what was dropped onto the window: a session file (JSON
+// with a "dataset" key) with its dataset, a dataset file (JSON with
+// "epochs"), or anything else as a spectrum to add, in the Add a spectrum…
+// form with the file filled in. One file at a time; a file that cannot be
+// opened says why and changes nothing.
+func (wb *workbench) dropped(_ fyne.Position, uris []fyne.URI) {
+	if len(uris) == 0 {
+		return
+	}
+	if len(uris) > 1 {
+		wb.status.SetText(fmt.Sprintf("%d files dropped: drop one at a time", len(uris)))
+		return
+	}
+	path := uris[0].Path()
+	switch core.SniffJSON(path) {
+	case core.SessionFile:
+		wb.startOpenSession(path)
+	case core.DatasetFile:
+		wb.startOpenDataset(path)
+	default:
+		wb.addSpectrumDialogFor(path)
+	}
+}
+
+// startOpenSession opens the session saved at path with its dataset off
+// the UI goroutine and shows it in this window.
+func (wb *workbench) startOpenSession(path string) {
+	wb.stop()
+	ctx, gen := wb.begin(true, "opening the session "+path+"…")
+	go func() {
+		b, s, err := core.OpenSession(ctx, path, nil)
+		fyne.Do(func() {
+			if !wb.end(true, gen) {
+				return
+			}
+			if err != nil {
+				wb.showJobError(err)
+				dialog.ShowError(err, wb.win)
+				if wb.jobDone != nil {
+					wb.jobDone(nil, err)
+				}
+				return
+			}
+			nw := newWorkbenchIn(wb.win, b, s)
+			nw.done, nw.jobDone = wb.done, wb.jobDone
+			nw.recompute()
+			if wb.jobDone != nil {
+				wb.jobDone(nw, nil)
+			}
+		})
+	}()
 }
