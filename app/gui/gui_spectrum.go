@@ -183,38 +183,21 @@ func (wb *workbench) addSpectrumDialogFor(file string) {
 // and says why.
 func (wb *workbench) startAddEpoch(e core.Epoch) {
 	_, gen := wb.begin(true, "reading "+e.File+"…") // a read is quick: nothing to cancel
+	s := *wb.sess                                   // the goroutine works on copies
+	s.Candidates = append([]core.Candidate(nil), s.Candidates...)
+	old := len(wb.bench.LoadWarnings)
 	go func() {
 		nb, err := wb.bench.WithEpoch(e)
-		fyne.Do(func() {
-			if !wb.end(true, gen) {
-				return
-			}
-			if err != nil {
-				wb.showJobError(err)
-				dialog.ShowError(err, wb.win)
-				if wb.jobDone != nil {
-					wb.jobDone(nil, err)
-				}
-				return
-			}
-			s := *wb.sess
+		note := ""
+		if err == nil {
 			s.Dataset = nb.Name
-			s.Candidates = append([]core.Candidate(nil), s.Candidates...)
-			if _, err := s.SwitchEpoch(nb.Data, len(nb.Data.Epochs)-1); err != nil {
-				wb.showJobError(err)
-				return
+			_, err = s.SwitchEpoch(nb.Data, len(nb.Data.Epochs)-1)
+			note = fmt.Sprintf("added %s as epoch %d (%g d); Session ▸ Save dataset… keeps it", e.File, len(nb.Data.Epochs), e.Days)
+			for _, w := range nb.LoadWarnings[old:] {
+				note += "\n• " + w
 			}
-			nw := newWorkbenchIn(wb.win, nb, &s)
-			nw.done, nw.jobDone = wb.done, wb.jobDone
-			nw.note = fmt.Sprintf("added %s as epoch %d (%g d); Session ▸ Save dataset… keeps it", e.File, len(nb.Data.Epochs), e.Days)
-			for _, w := range nb.LoadWarnings[len(wb.bench.LoadWarnings):] {
-				nw.note += "\n• " + w
-			}
-			nw.recompute()
-			if wb.jobDone != nil {
-				wb.jobDone(nw, nil)
-			}
-		})
+		}
+		fyne.Do(func() { wb.finishReplace(gen, nb, &s, note, err) })
 	}()
 }
 
@@ -273,24 +256,6 @@ func (wb *workbench) startOpenSession(path string) {
 	ctx, gen := wb.begin(true, "opening the session "+path+"…")
 	go func() {
 		b, s, err := core.OpenSession(ctx, path, nil)
-		fyne.Do(func() {
-			if !wb.end(true, gen) {
-				return
-			}
-			if err != nil {
-				wb.showJobError(err)
-				dialog.ShowError(err, wb.win)
-				if wb.jobDone != nil {
-					wb.jobDone(nil, err)
-				}
-				return
-			}
-			nw := newWorkbenchIn(wb.win, b, s)
-			nw.done, nw.jobDone = wb.done, wb.jobDone
-			nw.recompute()
-			if wb.jobDone != nil {
-				wb.jobDone(nw, nil)
-			}
-		})
+		fyne.Do(func() { wb.finishReplace(gen, b, s, "", err) })
 	}()
 }

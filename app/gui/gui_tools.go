@@ -352,6 +352,13 @@ func (wb *workbench) startOpenDataset(path string) {
 
 // finishOpenDataset shows the dataset just read in this window.
 func (wb *workbench) finishOpenDataset(gen int, b *core.Bench, err error) {
+	wb.finishReplace(gen, b, nil, "", err)
+}
+
+// finishReplace ends tool computation gen that read a bench: on an error
+// it says why and leaves the window as it was; else the window shows b
+// with session s (a fresh one when nil), its first status line note.
+func (wb *workbench) finishReplace(gen int, b *core.Bench, s *core.Session, note string, err error) {
 	if !wb.end(true, gen) {
 		return
 	}
@@ -365,8 +372,11 @@ func (wb *workbench) finishOpenDataset(gen int, b *core.Bench, err error) {
 		}
 		return
 	}
-	nw := newWorkbenchIn(wb.win, b, core.NewSession(b))
-	nw.done, nw.jobDone = wb.done, wb.jobDone
+	if s == nil {
+		s = core.NewSession(b)
+	}
+	nw := newWorkbenchIn(wb.win, b, s)
+	nw.done, nw.jobDone, nw.note = wb.done, wb.jobDone, note
 	nw.recompute()
 	if wb.jobDone != nil {
 		wb.jobDone(nw, nil)
