@@ -3,6 +3,7 @@ package core
 import (
 	"context"
 	"fmt"
+	"math"
 	"runtime"
 	"slices"
 	"strings"
@@ -155,6 +156,15 @@ func (p Param) Describe(v float64) string {
 		return fmt.Sprintf("%.0f K", v)
 	}
 	return fmt.Sprintf("%.3f c", v)
+}
+
+// Round rounds v to the precision Describe shows (1 K, 0.001 c), so that a
+// value used from a message is the value the message gave.
+func (p Param) Round(v float64) float64 {
+	if p == Temperature {
+		return math.Round(v)
+	}
+	return math.Round(v*1000) / 1000
 }
 
 // Name is the parameter's name in messages and figures.

@@ -40,6 +40,43 @@ type Session struct {
 	// KnockOut is the element whose knock-out the figure also draws (its
 	// symbol; empty for none).
 	KnockOut string `json:"knock_out,omitempty"`
+	// Photospheres are the photosphere values the analyst left on the
+	// other epochs, by epoch index, so that switching back brings them back
+	// (the composition is shared by all epochs).
+	Photospheres map[int]Photosphere `json:"photospheres,omitempty"`
+}
+
+// Photosphere is one epoch's photosphere velocity (v/c) and temperature (K).
+type Photosphere struct {
+	Velocity    float64 `json:"photosphere_velocity_c"`
+	Temperature float64 `json:"temperature_k"`
+}
+
+// SwitchEpoch makes epoch i the shown one: the current epoch's photosphere
+// is kept for later, epoch i's comes back as the analyst left it (or, the
+// first time, from the dataset's recorded values), and the composition
+// and inner zone stay as they are. It returns a sentence saying what the
+// values now are and where they came from, for the status line.
+func (s *Session) SwitchEpoch(d *Dataset, i int) (string, error) {
+	if i < 0 || i >= len(d.Epochs) {
+		return "", fmt.Errorf("epoch %d out of range (the dataset has %d)", i+1, len(d.Epochs))
+	}
+	if i == s.Epoch {
+		return "", nil
+	}
+	if s.Photospheres == nil {
+		s.Photospheres = map[int]Photosphere{}
+	}
+	s.Photospheres[s.Epoch] = Photosphere{s.PhotosphereVelocity, s.Temperature}
+	from := "as you left them"
+	p, ok := s.Photospheres[i]
+	if !ok {
+		st := d.StartModel(i)
+		p, from = Photosphere{st.PhotosphereVelocity, st.Temperature}, "the dataset's recorded values"
+	}
+	s.Epoch, s.PhotosphereVelocity, s.Temperature = i, p.Velocity, p.Temperature
+	return fmt.Sprintf("epoch %d (%g d): v_ph = %.3f c and T_ph = %.0f K, %s; the composition is kept",
+		i+1, d.Epochs[i].Days, p.Velocity, p.Temperature, from), nil
 }
 
 // Candidate is a model the analyst keeps to compare with others.
@@ -69,6 +106,13 @@ func (s *Session) Validate(d *Dataset) error {
 		e, err := linelists.ElementBySymbol(s.KnockOut)
 		if err != nil || e.Symbol != s.KnockOut {
 			return fmt.Errorf("knock_out %q: want an element symbol such as Nd", s.KnockOut)
+		}
+	}
+	for e, p := range s.Photospheres {
+		m := s.Model
+		m.Epoch, m.PhotosphereVelocity, m.Temperature = e, p.Velocity, p.Temperature
+		if err := m.Validate(d); err != nil {
+			return fmt.Errorf("photospheres: %w", err)
 		}
 	}
 	if len(s.Candidates) > MaxCandidates {

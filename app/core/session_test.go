@@ -145,3 +145,47 @@ func TestSessionKnockOutAndOpen(t *testing.T) {
 		t.Error("a missing session file opened")
 	}
 }
+
+// TestSwitchEpoch: switching epochs keeps each epoch's photosphere as the
+// analyst left it and the composition shared; the first visit starts from
+// the dataset's values and says so; the values survive a save.
+func TestSwitchEpoch(t *testing.T) {
+	b := demoBench(t)
+	s := NewSession(b)
+	s.PhotosphereVelocity, s.Temperature = 0.2, 4800
+	comp := mustComp(t, "Sr=0.5,Kr=0.5")
+	s.MassFractions = comp
+	msg, err := s.SwitchEpoch(b.Data, 1)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := b.Data.StartModel(1)
+	if s.Epoch != 1 || s.PhotosphereVelocity != st.PhotosphereVelocity || s.Temperature != st.Temperature || s.MassFractions != comp {
+		t.Errorf("first visit of epoch 2: %+v", s.Model)
+	}
+	if !strings.Contains(msg, "recorded") || !strings.Contains(msg, "epoch 2") {
+		t.Errorf("message %q", msg)
+	}
+	s.Temperature = 3900
+	if msg, _ = s.SwitchEpoch(b.Data, 0); s.PhotosphereVelocity != 0.2 || s.Temperature != 4800 || !strings.Contains(msg, "as you left") {
+		t.Errorf("back on epoch 1: %+v, %q", s.Model, msg)
+	}
+	path := filepath.Join(t.TempDir(), "s.json")
+	if err := s.Save(path); err != nil {
+		t.Fatal(err)
+	}
+	got, err := LoadSession(path, b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := got.SwitchEpoch(b.Data, 1); err != nil || got.Temperature != 3900 {
+		t.Errorf("epoch 2 after a save: T = %g (%v), want 3900", got.Temperature, err)
+	}
+	if _, err := s.SwitchEpoch(b.Data, 9); err == nil {
+		t.Error("epoch 10 accepted")
+	}
+	s.Photospheres[1] = Photosphere{Velocity: 0.9, Temperature: 4000}
+	if err := s.Validate(b.Data); err == nil {
+		t.Error("a saved photosphere beyond the outer velocity accepted")
+	}
+}

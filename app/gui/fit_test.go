@@ -4,12 +4,17 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
 
 	"broadline/app/core"
 )
@@ -153,4 +158,118 @@ func TestWorkbenchKeepsKnockOut(t *testing.T) {
 	if wb2.without != 0 || wb2.sess.KnockOut != "" || !strings.Contains(wb2.status.Text, "Xe") {
 		t.Errorf("a knock-out without lines: Z %d, session %q, status %q", wb2.without, wb2.sess.KnockOut, wb2.status.Text)
 	}
+}
+
+// TestUseTemperatureSweepExactly: "Use T_ph = …" puts the value the button
+// gives (to 1 K) in the session, not the slider's 50-K step, and the label
+// shows it; once the velocity has changed, the sweep is refused.
+func TestUseTemperatureSweepExactly(t *testing.T) {
+	wb := cheapWorkbench(t)
+	t0 := wb.sess.Temperature
+	sw := waitJob(t, wb, func() { wb.startSweep(core.Temperature, t0-700, t0+900, 5) }).(*core.Sweep)
+	if !strings.Contains(wb.status.Text, "at v_ph = ") {
+		t.Errorf("the sweep's message does not say the velocity it was made at: %q", wb.status.Text)
+	}
+	wb.done = func(*core.Overlay, error) {}
+	want := math.Round(sw.Best)
+	wb.useSweep(sw)
+	if wb.sess.Temperature != want || !strings.Contains(wb.tempLabel.Text, strconv.Itoa(int(want))) {
+		t.Errorf("used T = %g (label %q), want %g (best %g)", wb.sess.Temperature, wb.tempLabel.Text, want, sw.Best)
+	}
+	wb.sess.PhotosphereVelocity += 0.01
+	before := wb.sess.Model
+	wb.useSweep(sw)
+	if wb.sess.Model != before || !strings.Contains(wb.status.Text, "another model") {
+		t.Errorf("a sweep for another velocity was used: %q", wb.status.Text)
+	}
+}
+
+// TestEpochSwitchKeepsValues drives the epoch selector: a new epoch starts
+// at the dataset's values and says so, the composition stays, and going
+// back restores the values left there; the selector gives up the keyboard.
+func TestEpochSwitchKeepsValues(t *testing.T) {
+	wb := cheapWorkbench(t)
+	wb.done = func(*core.Overlay, error) {}
+	wb.sess.PhotosphereVelocity, wb.sess.Temperature = 0.2, 4450
+	comp, err := core.ParseComposition("Sr=0.2,Kr=0.8")
+	if err != nil {
+		t.Fatal(err)
+	}
+	wb.sess.MassFractions = comp
+	wb.syncControls()
+	wb.win.Canvas().Focus(wb.epoch)
+	ch := make(chan struct{}, 4)
+	wb.done = func(*core.Overlay, error) { ch <- struct{}{} }
+	wb.epoch.SetSelectedIndex(1)
+	<-ch
+	st := wb.bench.Data.StartModel(1)
+	if wb.sess.Epoch != 1 || wb.sess.Temperature != st.Temperature || wb.sess.MassFractions != comp {
+		t.Errorf("on epoch 2: %+v", wb.sess.Model)
+	}
+	if !strings.Contains(wb.status.Text, "recorded") || wb.win.Canvas().Focused() != nil {
+		t.Errorf("status %q, focus %v", wb.status.Text, wb.win.Canvas().Focused())
+	}
+	wb.epoch.SetSelectedIndex(0)
+	<-ch
+	if wb.sess.PhotosphereVelocity != 0.2 || wb.sess.Temperature != 4450 || !strings.Contains(wb.status.Text, "as you left") {
+		t.Errorf("back on epoch 1: %+v, status %q", wb.sess.Model, wb.status.Text)
+	}
+}
+
+// TestSelectorsOpen taps open every selector of the window — on the demo,
+// on a dataset opened from a file, and while a computation runs — and
+// checks that each shows its pop-up with all its options (an empty or
+// rebuilt option list once crashed the pop-up).
+func TestSelectorsOpen(t *testing.T) {
+	// Each workbench is made just before its turn: a new test app replaces
+	// the current one, whose driver finds the window a pop-up opens in.
+	for _, c := range []struct {
+		name string
+		make func(*testing.T) *workbench
+	}{{"demo", demoWorkbench}, {"dataset file", cheapWorkbench}, {"computing", demoWorkbench}} {
+		name, wb := c.name, c.make(t)
+		wb.done = func(*core.Overlay, error) {}
+		if name == "computing" {
+			wb.recompute()
+		}
+		for _, sel := range []*widget.Select{wb.epoch, wb.knockSel, wb.unitSel} {
+			if len(sel.Options) == 0 {
+				t.Errorf("%s: a selector without options", name)
+				continue
+			}
+			wb.win.Resize(fyne.NewSize(1280, 800))
+			wb.win.Canvas().Capture() // lay the window out, as showing it does
+			test.Tap(sel)
+			top := wb.win.Canvas().Overlays().Top()
+			if top == nil {
+				t.Errorf("%s: tapping the selector %v opened nothing", name, sel.Options)
+				continue
+			}
+			shown := strings.Join(texts(top), "|")
+			for _, o := range sel.Options {
+				if !strings.Contains("|"+shown+"|", "|"+o+"|") {
+					t.Errorf("%s: the pop-up of %v shows %q, without %q", name, sel.Options, shown, o)
+				}
+			}
+			wb.win.Canvas().Overlays().Remove(top)
+		}
+	}
+}
+
+// texts returns the text of every canvas.Text drawn under o.
+func texts(o fyne.CanvasObject) []string {
+	var out []string
+	switch x := o.(type) {
+	case *canvas.Text:
+		out = append(out, x.Text)
+	case *fyne.Container:
+		for _, c := range x.Objects {
+			out = append(out, texts(c)...)
+		}
+	case fyne.Widget:
+		for _, c := range test.WidgetRenderer(x).Objects() {
+			out = append(out, texts(c)...)
+		}
+	}
+	return out
 }

@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"sync"
 
 	"fyne.io/fyne/v2"
@@ -109,6 +110,9 @@ type workbench struct {
 	// syncing is true while syncControls sets the controls from the
 	// session, so that their callbacks change nothing.
 	syncing bool
+	// note is a sentence the next model's status line starts with (what
+	// an epoch switch set), then cleared.
+	note    string
 	unitSel *widget.Select // wavelength unit of the figure and the table
 	// lastKnock is the knock-out overlay of the last computation (nil
 	// when none was asked for); tests read it.
@@ -137,12 +141,20 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	}
 	wb.epoch = widget.NewSelect(epochs, func(string) {
 		i := wb.epoch.SelectedIndex()
-		if i < 0 || i == wb.sess.Epoch {
+		if i < 0 || i == wb.sess.Epoch || wb.syncing {
 			return
 		}
-		wb.sess.Model = wb.bench.Data.StartModel(i)
+		msg, err := wb.sess.SwitchEpoch(wb.bench.Data, i)
+		if err != nil {
+			wb.status.SetText(err.Error())
+			return
+		}
+		// The selector lets go of the keyboard, so that arrow keys over
+		// the plot do not change the epoch.
+		wb.win.Canvas().Unfocus()
 		wb.syncControls()
 		wb.updateFeatures()
+		wb.note = msg
 		wb.recompute()
 	})
 
@@ -601,6 +613,10 @@ func (wb *workbench) finish(gen int, s core.Model, ov, knock *core.Overlay, show
 		wb.figure.Image = img
 		wb.figure.Refresh()
 		msg := fmt.Sprintf("v_ph = %.3f c, T = %.0f K: χ²/N = %.2f over %d unmasked samples", s.PhotosphereVelocity, s.Temperature, ov.Reduced(), ov.N)
+		if wb.note != "" {
+			msg = wb.note + "\n" + msg
+			wb.note = ""
+		}
 		if ov.Preview {
 			msg += " (absorption-only preview: an approximation)"
 		}
@@ -686,9 +702,66 @@ func inWorkDir(name string) string {
 
 // showModelHelp opens the dialog that states the model's approximations.
 func showModelHelp(w fyne.Window) {
-	text := widget.NewRichTextFromMarkdown(core.ModelCautions)
-	text.Wrapping = fyne.TextWrapWord
-	scroll := container.NewVScroll(text)
-	scroll.SetMinSize(fyne.NewSize(620, 420))
-	dialog.ShowCustom("About the model", "Close", scroll, w)
+	dialog.ShowCustom("About the model", "Close", modelHelp(), w)
+}
+
+// modelHelp is the scrolling page of Help ▸ About the model: one wrapped
+// label per heading, list item and paragraph of core.ModelCautions. (A
+// Markdown rich text mixing bold and plain segments in list items broke
+// words mid-word and, further down, put one letter per row in a dialog.)
+func modelHelp() fyne.CanvasObject {
+	box := container.NewVBox()
+	for _, p := range helpParagraphs(core.ModelCautions) {
+		l := widget.NewLabel(p.text)
+		l.Wrapping = fyne.TextWrapWord
+		if p.heading {
+			l.TextStyle = fyne.TextStyle{Bold: true}
+		}
+		box.Add(l)
+	}
+	scroll := container.NewVScroll(box)
+	scroll.SetMinSize(fyne.NewSize(640, 460))
+	return scroll
+}
+
+// helpParagraph is a heading, list item ("• …") or paragraph of the help.
+type helpParagraph struct {
+	text    string
+	heading bool
+}
+
+// helpParagraphs splits the Markdown of the help into paragraphs: "## "
+// lines are headings, "- " starts a list item, a blank line ends a
+// paragraph, other lines continue the one before; bold marks are dropped.
+func helpParagraphs(md string) []helpParagraph {
+	var out []helpParagraph
+	var cur []string
+	flush := func() {
+		if len(cur) > 0 {
+			out = append(out, helpParagraph{text: strings.Join(cur, " ")})
+			cur = nil
+		}
+	}
+	for _, line := range strings.Split(strings.ReplaceAll(md, "**", ""), "\n") {
+		line = strings.TrimSpace(line)
+		switch {
+		case line == "":
+			flush()
+		case strings.HasPrefix(line, "## "):
+			flush()
+			out = append(out, helpParagraph{text: strings.TrimPrefix(line, "## "), heading: true})
+		case strings.HasPrefix(line, "- "):
+			flush()
+			cur = []string{"• " + strings.TrimPrefix(line, "- ")}
+		default:
+			cur = append(cur, line)
+		}
+	}
+	flush()
+	return out
+}
+
+// plainHelp is the help text without its Markdown marks, as it reads.
+func plainHelp(md string) string {
+	return strings.NewReplacer("**", "", "## ", "", "- ", "").Replace(md)
 }

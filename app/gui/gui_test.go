@@ -189,7 +189,7 @@ func TestWorkbenchTools(t *testing.T) {
 	sess.PhotosphereVelocity = truth + 0.05
 	wb.syncControls()
 	sw := waitJob(t, wb, func() { wb.startSweep(core.Velocity, truth-0.06, truth+0.06, 13) }).(*core.Sweep)
-	if math.Abs(sw.Best-truth) > 0.01 || !strings.Contains(wb.status.Text, "least") {
+	if math.Abs(sw.Best-truth) > 0.01 || !strings.Contains(wb.status.Text, "least") || !strings.Contains(wb.status.Text, "at T_ph = ") {
 		t.Errorf("sweep best %.4f c (recorded %.4f), status %q", sw.Best, truth, wb.status.Text)
 	}
 	if sess.PhotosphereVelocity != truth+0.05 {
@@ -197,7 +197,7 @@ func TestWorkbenchTools(t *testing.T) {
 	}
 	wb.done = func(*core.Overlay, error) {}
 	wb.useSweep(sw)
-	if math.Abs(sess.PhotosphereVelocity-sw.Best) > 0.0005 || wb.velocity.Value != sess.PhotosphereVelocity {
+	if sess.PhotosphereVelocity != core.Velocity.Round(sw.Best) || wb.velocity.Value != sess.PhotosphereVelocity {
 		t.Errorf("use: session %g, slider %g, want %g", sess.PhotosphereVelocity, wb.velocity.Value, sw.Best)
 	}
 	waitDone(t, wb)

@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"image"
-	"math"
 	"strconv"
 	"strings"
 
@@ -107,7 +106,12 @@ func (wb *workbench) finishSweep(gen int, sw *core.Sweep, img image.Image, err e
 // showSweep reports a finished sweep and opens its dialog.
 func (wb *workbench) showSweep(sw *core.Sweep, img image.Image) {
 	p := sw.Param
-	msg := fmt.Sprintf("%s sweep: χ²/N is least (%.2f) near %s = %s", p.Name(), sw.BestChi2N, p.Name(), p.Describe(sw.Best))
+	other := fmt.Sprintf("T_ph = %s", core.Temperature.Describe(sw.At.Temperature))
+	if p == core.Temperature {
+		other = fmt.Sprintf("v_ph = %s", core.Velocity.Describe(sw.At.PhotosphereVelocity))
+	}
+	msg := fmt.Sprintf("%s sweep at %s (epoch %d): χ²/N is least (%.2f) near %s = %s", p.Name(), other, sw.At.Epoch+1,
+		sw.BestChi2N, p.Name(), p.Describe(sw.Best))
 	if sw.AtEdge {
 		msg += " — at the end of the range: the minimum may lie outside it; widen the range"
 	}
@@ -130,9 +134,11 @@ func (wb *workbench) showSweep(sw *core.Sweep, img image.Image) {
 	d.Show()
 }
 
-// useSweep sets the swept parameter to the sweep's best value, to the
-// slider's step (0.001 c, 50 K), and recomputes; a sweep made for another
-// model (its other parameters since changed) is refused with the reason.
+// useSweep sets the swept parameter to the sweep's best value as the
+// button gives it (to 1 K or 0.001 c; the slider's knob goes to its
+// nearest step, the session keeps the value), and recomputes; a sweep made
+// for another model (its other parameters since changed) is refused with
+// the reason.
 func (wb *workbench) useSweep(sw *core.Sweep) {
 	if !sw.Matches(wb.sess.Model) {
 		wb.status.SetText("the sweep was made for another model (epoch, composition or the other photosphere value changed): sweep again")
@@ -142,7 +148,7 @@ func (wb *workbench) useSweep(sw *core.Sweep) {
 	if sw.Param == core.Temperature {
 		sl = wb.temp
 	}
-	v := min(max(math.Round(sw.Best/sl.Step)*sl.Step, sl.Min), sl.Max)
+	v := min(max(sw.Param.Round(sw.Best), sl.Min), sl.Max)
 	wb.sess.Model = sw.With(wb.sess.Model, v)
 	wb.syncControls()
 	wb.recompute()
