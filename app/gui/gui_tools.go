@@ -188,6 +188,7 @@ func (wb *workbench) keepCandidate() error {
 		return err
 	}
 	wb.candList.Refresh()
+	wb.noteChange()
 	wb.status.SetText(fmt.Sprintf("kept the current model as candidate %s", c.Label))
 	return nil
 }
@@ -224,6 +225,7 @@ func (wb *workbench) removeCandidate(i int) {
 	}
 	wb.sess.Candidates = append(wb.sess.Candidates[:i:i], wb.sess.Candidates[i+1:]...)
 	wb.candList.Refresh()
+	wb.noteChange()
 }
 
 // startComparison computes the candidates of the shown epoch off the UI
@@ -365,6 +367,7 @@ func (wb *workbench) finishOpenDataset(gen int, b *core.Bench, err error) {
 	}
 	nw := newWorkbenchIn(wb.win, b, core.NewSession(b))
 	nw.done, nw.jobDone = wb.done, wb.jobDone
+	nw.adoptDaily(wb)
 	nw.recompute()
 	if wb.jobDone != nil {
 		wb.jobDone(nw, nil)
