@@ -34,8 +34,10 @@ const (
 	// cacheVersion 2: the report's medium is written by name
 	// (physics.Medium), and air wavelengths are converted by
 	// physics.AirToVacuum, which can differ from the former conversion in
-	// the last bit.
-	cacheVersion    = 2
+	// the last bit. 3: the readers reject values outside the physical
+	// ranges of ranges.go, so a cache made from a file that now fails must
+	// not stand in for it.
+	cacheVersion    = 3
 	cacheHeaderSize = 96
 	cacheMaxReport  = 1 << 20
 	cacheHeadBytes  = 64 << 10

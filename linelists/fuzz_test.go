@@ -16,6 +16,8 @@ func FuzzRead(f *testing.F) {
 	f.Add([]byte(sample), false)
 	f.Add([]byte("wavelength_nm, species, gf, lower_energy_eV, lower_g\n500.0, Nd II, 0.1, 0.5, 8\n"), false)
 	f.Add([]byte("5000 -1 0 2.5\n6000 -2 1 3\n"), true)
+	f.Add([]byte("wavelength_A species log_gf lower_energy_eV lower_g\n5000.0 Nd_II 1e308 0.0 8\n"), false)
+	f.Add([]byte("10 3 90000 49.5\n1e7 -15 0 0\n"), true)
 	var gz bytes.Buffer
 	zw := gzip.NewWriter(&gz)
 	zw.Write([]byte(sample))
@@ -50,7 +52,8 @@ func FuzzRead(f *testing.F) {
 	})
 }
 
-// checkStore asserts the invariants every Store from this package keeps.
+// checkStore asserts the invariants every Store from this package's
+// readers keeps, the physical ranges of ranges.go included.
 func checkStore(t *testing.T, s *Store) {
 	t.Helper()
 	n := s.Len()
@@ -62,6 +65,13 @@ func checkStore(t *testing.T, s *Store) {
 		if !(w > 0) || math.IsInf(w, 0) {
 			t.Fatalf("line %d: wavelength %v", i, w)
 		}
+		// Air→vacuum lengthens a wavelength by less than 0.03 % (Morton 2000).
+		if w < minWavelengthA || w > maxWavelengthA*1.0003 {
+			t.Fatalf("line %d: wavelength %v Å outside %v–%v Å", i, w, minWavelengthA, maxWavelengthA)
+		}
+		if lg := s.LogGF[i]; !(lg >= minLogGF && lg <= maxLogGF) {
+			t.Fatalf("line %d: log gf %v outside %v…%v", i, lg, minLogGF, maxLogGF)
+		}
 		if i > 0 && w < s.Wavelength[i-1] {
 			t.Fatalf("not sorted at %d", i)
 		}
@@ -71,10 +81,18 @@ func checkStore(t *testing.T, s *Store) {
 		if s.Levels.Species[s.Lower[i]] != s.Species[i] {
 			t.Fatalf("line %d: lower level of another species", i)
 		}
+		sp := s.SpeciesTable[s.Species[i]]
+		if lim, _ := lowerEnergyLimit(sp); s.Levels.Energy[s.Lower[i]] > lim {
+			t.Fatalf("line %d: lower level %v eV above %v's limit %v eV", i, s.Levels.Energy[s.Lower[i]], sp, lim)
+		}
 	}
 	for i, e := range s.Levels.Energy {
-		if !(e >= 0) || math.IsInf(e, 0) {
-			t.Fatalf("level %d: energy %v", i, e)
+		sp := s.SpeciesTable[s.Levels.Species[i]]
+		if !(e >= 0) || e > upperEnergyLimit(sp) {
+			t.Fatalf("level %d of %v: energy %v eV", i, sp, e)
+		}
+		if g := s.Levels.G[i]; !(g >= 0 && g <= maxReadG) || g != float32(math.Round(float64(g))) {
+			t.Fatalf("level %d of %v: weight %v", i, sp, g)
 		}
 	}
 }
@@ -85,6 +103,7 @@ func FuzzReadLevels(f *testing.F) {
 	f.Add([]byte("species energy_cm-1 j\nCa_II 0 0.5\nCa_II 13650.19 1.5\n"))
 	f.Add([]byte("energy_eV, g\n0, 2\n1.7, 4\n"))
 	f.Add([]byte("species energy_eV g\nNd_II 1e999 8\n"))
+	f.Add([]byte("species energy_eV g\nNd_II 11.9 8\nNd_V 99 101\n"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		b := NewBuilder()
 		_, err := b.ReadLevels(bytes.NewReader(data), LevelsOptions{Name: "fuzz"})

@@ -140,17 +140,20 @@ func (b *Builder) ReadLevels(r io.Reader, opts LevelsOptions) (LevelsReport, err
 			if perr2 != nil {
 				return rep, perr(lineNo, colE+1, perr2)
 			}
+			if lim, why := lowerEnergyLimit(l.sp); e > lim {
+				return rep, perr(lineNo, colE+1, fmt.Errorf("%w: level energy %q (%.4g eV): want 0 to %.4g eV (%s); a level above the limit is not bound", ErrRange, truncate(fields[colE]), e, lim, why))
+			}
 			l.e = e
 			if colG >= 0 {
 				g, ok := parseFloat(fields[colG])
-				if !ok || !(g >= 1) || g > maxLevelG || math.Abs(g-math.Round(g)) > 1e-6 {
-					return rep, perr(lineNo, colG+1, fmt.Errorf("%w: weight %q: want a whole number g = 2J+1 ≥ 1", ErrRange, truncate(fields[colG])))
+				if !ok || !(g >= 1) || g > maxReadG || math.Abs(g-math.Round(g)) > 1e-6 {
+					return rep, perr(lineNo, colG+1, fmt.Errorf("%w: weight %q: want a whole number g = 2J+1 from 1 to %d", ErrRange, truncate(fields[colG]), maxReadG))
 				}
 				l.g = float32(math.Round(g))
 			} else {
 				j, ok := parseFloat(fields[colJ])
-				if !ok || !(j >= 0) || 2*j+1 > maxLevelG || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
-					return rep, perr(lineNo, colJ+1, fmt.Errorf("%w: J %q: want a whole or half-whole number ≥ 0", ErrRange, truncate(fields[colJ])))
+				if !ok || !(j >= 0) || 2*j+1 > maxReadG || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
+					return rep, perr(lineNo, colJ+1, fmt.Errorf("%w: J %q: want a whole or half-whole number from 0 to %g", ErrRange, truncate(fields[colJ]), float64(maxReadG-1)/2))
 				}
 				l.g = float32(math.Round(2*j) + 1)
 			}

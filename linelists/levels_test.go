@@ -62,6 +62,11 @@ func TestReadLevelsErrors(t *testing.T) {
 		{"species energy_eV g\nNd_II 1 0\n", 2, 3, ErrRange},
 		{"species energy_eV j\nNd_II 1 0.7\n", 2, 3, ErrRange},
 		{"species energy_eV g\nQq_II 1 2\n", 2, 1, ErrSpecies},
+		// Above Nd II's ionisation energy (10.783 eV, NIST ASD) plus 1 eV.
+		{"species energy_eV g\nNd_II 11.9 8\n", 2, 2, ErrRange},
+		{"species energy_cm-1 g\nNd_II 1e7 8\n", 2, 2, ErrRange},
+		{"species energy_eV g\nNd_II 1 101\n", 2, 3, ErrRange},
+		{"species energy_eV j\nNd_II 1 50\n", 2, 3, ErrRange},
 		{"species energy_eV g\nNd_II 1\n", 2, 0, ErrFieldCount},
 		{"", 0, 0, ErrHeader},
 	} {

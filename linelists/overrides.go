@@ -103,8 +103,8 @@ func ReadOverrides(r io.Reader, name string) (*Overrides, error) {
 				}
 				if colG >= 0 && !isMissing(fields[colG]) {
 					g, ok := parseFloat(fields[colG])
-					if !ok || !(g >= 1) || g > maxLevelG || math.Abs(g-math.Round(g)) > 1e-6 {
-						return nil, perr(lineNo, colG+1, fmt.Errorf("%w: ground weight %q: want a whole number g = 2J+1 ≥ 1", ErrRange, truncate(fields[colG])))
+					if !ok || !(g >= 1) || g > maxReadG || math.Abs(g-math.Round(g)) > 1e-6 {
+						return nil, perr(lineNo, colG+1, fmt.Errorf("%w: ground weight %q: want a whole number g = 2J+1 from 1 to %d", ErrRange, truncate(fields[colG]), maxReadG))
 					}
 					o.GroundG[sp] = math.Round(g)
 				}

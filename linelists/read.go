@@ -549,6 +549,9 @@ func parseRow(fields [][]byte, cm *colMap, fixed Species, sc *speciesCache) (Lin
 	if !(w > 0) || !isFinite(w) {
 		return l, c, fmt.Errorf("%w: wavelength %q: want a finite number > 0", ErrRange, fields[c])
 	}
+	if w < minWavelengthA || w > maxWavelengthA {
+		return l, c, fmt.Errorf("%w: wavelength %q (%g Å): want %g Å to %g Å", ErrRange, truncate(fields[c]), w, minWavelengthA, maxWavelengthA)
+	}
 	l.Wavelength = w
 	if c = cm.col[FieldSpecies]; c >= 0 {
 		sp, err := sc.parse(fields[c])
@@ -567,6 +570,9 @@ func parseRow(fields [][]byte, cm *colMap, fixed Species, sc *speciesCache) (Lin
 		if !isFinite(v) {
 			return l, c, fmt.Errorf("%w: log gf %q: want a finite number", ErrRange, fields[c])
 		}
+		if v < minLogGF || v > maxLogGF {
+			return l, c, fmt.Errorf("%w: log gf %q: want %g to %+g", ErrRange, truncate(fields[c]), minLogGF, maxLogGF)
+		}
 		l.LogGF = v
 	} else {
 		c = cm.col[FieldGF]
@@ -577,12 +583,18 @@ func parseRow(fields [][]byte, cm *colMap, fixed Species, sc *speciesCache) (Lin
 		if !(v > 0) || !isFinite(v) {
 			return l, c, fmt.Errorf("%w: gf %q: want a finite number > 0", ErrRange, fields[c])
 		}
+		if lg := math.Log10(v); lg < minLogGF || lg > maxLogGF {
+			return l, c, fmt.Errorf("%w: gf %q: want 1e%g to 1e%g (log gf %g to %+g)", ErrRange, truncate(fields[c]), minLogGF, maxLogGF, minLogGF, maxLogGF)
+		}
 		l.LogGF = math.Log10(v)
 	}
 	c = cm.col[FieldLowerEnergy]
 	e, err := parseEnergy(fields[c], cm.unit[FieldLowerEnergy], "lower level energy")
 	if err != nil {
 		return l, c, err
+	}
+	if lim, why := lowerEnergyLimit(l.Species); e > lim {
+		return l, c, fmt.Errorf("%w: lower level energy %q (%.4g eV): want 0 to %.4g eV (%s); a level above the limit is not bound", ErrRange, truncate(fields[c]), e, lim, why)
 	}
 	l.LowerEnergy = e
 	if g, col, err := parseWeight(fields, cm, FieldLowerG, FieldLowerJ, "lower"); err != nil {
@@ -594,6 +606,9 @@ func parseRow(fields [][]byte, cm *colMap, fixed Species, sc *speciesCache) (Lin
 		e, err := parseEnergy(fields[c], cm.unit[FieldUpperEnergy], "upper level energy")
 		if err != nil {
 			return l, c, err
+		}
+		if lim := upperEnergyLimit(l.Species); e > lim {
+			return l, c, fmt.Errorf("%w: upper level energy %q (%.4g eV): want 0 to %.4g eV for %v (twice its ionisation energy, at least %g eV)", ErrRange, truncate(fields[c]), e, lim, l.Species, genericLevelLimit)
 		}
 		l.HasUpper, l.UpperEnergy = true, e
 		g, col, err := parseWeight(fields, cm, FieldUpperG, FieldUpperJ, "upper")
@@ -627,8 +642,8 @@ func parseWeight(fields [][]byte, cm *colMap, fg, fj Field, which string) (float
 		if !ok {
 			return 0, c, numErr(fields[c], "a "+which+" level weight g")
 		}
-		if !(g >= 1) || g > maxLevelG || math.Abs(g-math.Round(g)) > 1e-6 {
-			return 0, c, fmt.Errorf("%w: %s level weight %q: want a whole number g = 2J+1 from 1 to 10000", ErrRange, which, fields[c])
+		if !(g >= 1) || g > maxReadG || math.Abs(g-math.Round(g)) > 1e-6 {
+			return 0, c, fmt.Errorf("%w: %s level weight %q: want a whole number g = 2J+1 from 1 to %d", ErrRange, which, truncate(fields[c]), maxReadG)
 		}
 		return float32(math.Round(g)), -1, nil
 	}
@@ -640,8 +655,8 @@ func parseWeight(fields [][]byte, cm *colMap, fg, fj Field, which string) (float
 		if !ok {
 			return 0, c, numErr(fields[c], "a "+which+" level J")
 		}
-		if !(j >= 0) || 2*j+1 > maxLevelG || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
-			return 0, c, fmt.Errorf("%w: %s level J %q: want a whole or half-whole number from 0 to 4999.5", ErrRange, which, fields[c])
+		if !(j >= 0) || 2*j+1 > maxReadG || math.Abs(2*j-math.Round(2*j)) > 1e-6 {
+			return 0, c, fmt.Errorf("%w: %s level J %q: want a whole or half-whole number from 0 to %g", ErrRange, which, truncate(fields[c]), float64(maxReadG-1)/2)
 		}
 		return float32(math.Round(2*j) + 1), -1, nil
 	}

@@ -123,6 +123,23 @@ func TestReadGzip(t *testing.T) {
 	}
 }
 
+// TestReadRangeEdges checks that values just inside the physical ranges
+// of ranges.go are read.
+func TestReadRangeEdges(t *testing.T) {
+	in := "wavelength_A species log_gf lower_energy_eV lower_j upper_energy_eV upper_g\n" +
+		"10 Nd_II -15 0 0 - -\n" +
+		"1e7 Nd_II 3 11.5 49.5 21 100\n" +
+		"5000 Nd_V -1 99 0.5 - -\n"
+	s, _, err := Read(strings.NewReader(in), ReadOptions{Name: "edges"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Len() != 3 {
+		t.Fatalf("%d lines, want 3", s.Len())
+	}
+	checkStore(t, s)
+}
+
 func TestReadErrors(t *testing.T) {
 	hdr := "wavelength_A species log_gf lower_energy_eV\n"
 	for _, tc := range []struct {
@@ -146,6 +163,22 @@ func TestReadErrors(t *testing.T) {
 		{"bad species", hdr + "5000 Xy_II -1 0\n", 2, 2, ErrSpecies, "unknown element", nil},
 		{"nan loggf", hdr + "5000 Nd_II nan 0\n", 2, 3, ErrRange, "finite", nil},
 		{"negative energy", hdr + "5000 Nd_II -1 -0.1\n", 2, 4, ErrRange, "≥ 0", nil},
+		// Physical ranges (ranges.go).
+		{"issue 11 repro: log gf 1e308", "wavelength_A species log_gf lower_energy_eV lower_g\n5000.0 Nd_II 1e308 0.0 8\n", 2, 3, ErrRange, "want -15 to +3", nil},
+		{"log gf 400", hdr + "5000 Nd_II 400 0\n", 2, 3, ErrRange, "log gf", nil},
+		{"log gf -16", hdr + "5000 Nd_II -16 0\n", 2, 3, ErrRange, "log gf", nil},
+		{"gf 1e5", "wavelength_A species gf lower_energy_eV\n5000 Nd_II 1e5 0\n", 2, 3, ErrRange, "log gf -15 to +3", nil},
+		{"wavelength 5 A", hdr + "5 Nd_II -1 0\n", 2, 1, ErrRange, "want 10 Å to 1e+07 Å", nil},
+		{"wavelength 2 mm", "wavelength_um species log_gf lower_energy_eV\n2000 Nd_II -1 0\n", 2, 1, ErrRange, "1e+07 Å", nil},
+		// Nd II ionises at 10.783 eV (NIST ASD, element.go); 12 eV is above
+		// the limit plus the 1 eV margin, 11.5 eV within it.
+		{"lower energy above the limit", hdr + "5000 Nd_II -1 12\n", 2, 4, ErrRange, "ionisation energy of Nd II", nil},
+		{"lower energy in cm-1 above the limit", "wavelength_A species log_gf lower_energy_cm-1\n5000 Nd_II -1 1e6\n", 2, 4, ErrRange, "not bound", nil},
+		{"upper energy far above", "wavelength_A species log_gf lower_energy_eV upper_energy_eV upper_g\n5000 Nd_II -1 0 500 2\n", 2, 5, ErrRange, "upper level energy", nil},
+		{"g 101", "wavelength_A species log_gf lower_energy_eV lower_g\n5000 Nd_II -1 0 101\n", 2, 5, ErrRange, "from 1 to 100", nil},
+		{"J 50", "wavelength_A species log_gf lower_energy_eV lower_j\n5000 Nd_II -1 0 50\n", 2, 5, ErrRange, "0 to 49.5", nil},
+		{"import: log gf 1e308", "5000 1e308 0\n", 1, 2, ErrRange, "log gf", &Import{Columns: []ColumnSpec{{Field: FieldWavelength, Unit: UnitAngstrom, Index: 0}, {Field: FieldLogGF, Index: 1}, {Field: FieldLowerEnergy, Unit: UnitEV, Index: 2}}, Species: MustSpecies("Nd II")}},
+		{"import: energy in the wrong unit", "5000 -1 20000\n", 1, 3, ErrRange, "ionisation energy of Nd II", &Import{Columns: []ColumnSpec{{Field: FieldWavelength, Unit: UnitAngstrom, Index: 0}, {Field: FieldLogGF, Index: 1}, {Field: FieldLowerEnergy, Unit: UnitEV, Index: 2}}, Species: MustSpecies("Nd II")}},
 		{"field count", hdr + "5000 Nd_II -1\n", 2, 0, ErrFieldCount, "3 fields, the header names 4", nil},
 		{"gf zero", "wavelength_A species gf lower_energy_eV\n5000 Nd_II 0 0\n", 2, 3, ErrRange, "gf", nil},
 		{"gf negative", "wavelength_A species gf lower_energy_eV\n5000 Nd_II -2 0\n", 2, 3, ErrRange, "gf", nil},

@@ -50,7 +50,7 @@ func RunSession(path string) error {
 	}
 	a := app.NewWithID("org.broadline.workbench")
 	wb := newWorkbench(a, b, s)
-	wb.win.Resize(fyne.NewSize(1280, 800))
+	wb.startDaily(a, "") // window state, recovery, autosave (gui_history.go)
 	wb.recompute()
 	wb.win.ShowAndRun()
 	return nil
@@ -61,6 +61,8 @@ func RunSession(path string) error {
 // every number it shows is computed in app/core and every figure drawn by
 // app/figure.
 type workbench struct {
+	// daily is the undo history, autosave and window state (gui_history.go).
+	daily dailyState
 	win   fyne.Window
 	bench *core.Bench
 	sess  *core.Session
@@ -374,6 +376,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.win.SetOnDropped(wb.dropped)
 	wb.syncControls()
 	wb.updateFeatures()
+	wb.installDaily(split, right)
 	return wb
 }
 
@@ -543,6 +546,7 @@ func (wb *workbench) progressFunc(gen int) func(done, total int) {
 // recompute starts the synthesis for the current session off the UI
 // goroutine, cancelling any computation still running.
 func (wb *workbench) recompute() {
+	wb.noteChange() // undo history and autosave (gui_history.go)
 	ctx, gen := wb.begin(false, "computing…")
 	if wb.featAttr != nil && wb.attrFor != wb.sess.Model {
 		wb.featAttr = nil // made for another model

@@ -102,7 +102,7 @@ func TestWorkbenchOnDemo(t *testing.T) {
 	if got := strings.Join(cards, ","); !strings.Contains(got, "Ejecta model") || !strings.Contains(got, "Spectrum") || !strings.Contains(got, "Features") {
 		t.Errorf("panels %q", got)
 	}
-	if m := wb.win.MainMenu(); m == nil || len(m.Items) != 3 || m.Items[1].Label != "Figure" || m.Items[2].Label != "Help" {
+	if m := wb.win.MainMenu(); m == nil || len(m.Items) != 4 || m.Items[1].Label != "Edit" || m.Items[2].Label != "Figure" || m.Items[3].Label != "Help" {
 		t.Errorf("menus wrong: %+v", m)
 	}
 

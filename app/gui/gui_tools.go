@@ -190,6 +190,7 @@ func (wb *workbench) keepCandidate() error {
 		return err
 	}
 	wb.candList.Refresh()
+	wb.noteChange()
 	wb.status.SetText(fmt.Sprintf("kept the current model as candidate %s", c.Label))
 	return nil
 }
@@ -221,6 +222,7 @@ func (wb *workbench) removeCandidate(i int) {
 	}
 	wb.sess.Candidates = append(wb.sess.Candidates[:i:i], wb.sess.Candidates[i+1:]...)
 	wb.candList.Refresh()
+	wb.noteChange()
 }
 
 // startComparison computes every candidate at the shown epoch off the UI
@@ -377,6 +379,7 @@ func (wb *workbench) finishReplace(gen int, b *core.Bench, s *core.Session, note
 	}
 	nw := newWorkbenchIn(wb.win, b, s)
 	nw.done, nw.jobDone, nw.note = wb.done, wb.jobDone, note
+	nw.adoptDaily(wb)
 	nw.recompute()
 	if wb.jobDone != nil {
 		wb.jobDone(nw, nil)
@@ -433,17 +436,23 @@ func (wb *workbench) unsavedCandidates() bool {
 	return !slices.Equal(wb.sess.Candidates, wb.savedCands)
 }
 
-// closeIntercept asks before the window closes with candidates not saved.
+// closeIntercept asks before the window closes with candidates not saved,
+// then closes it cleanly (window state kept, autosave removed: see
+// cleanExit).
 func (wb *workbench) closeIntercept() {
-	if !wb.unsavedCandidates() {
+	quit := func() {
+		wb.cleanExit()
 		wb.win.Close()
+	}
+	if !wb.unsavedCandidates() {
+		quit()
 		return
 	}
 	dialog.ShowConfirm("Quit without saving?",
 		fmt.Sprintf("%d candidates are not saved. Quit anyway? (Session ▸ Save session… keeps them.)", len(wb.sess.Candidates)),
 		func(ok bool) {
 			if ok {
-				wb.win.Close()
+				quit()
 			}
 		}, wb.win)
 }
