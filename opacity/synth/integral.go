@@ -517,22 +517,6 @@ func scatterRuns(I []float64, j0 int, runs []run, pt prefix, a []float32, n int)
 		}
 		d := tmp[:len(I)]
 		pt.runDepth(d, j0, u, false)
-		w := u.w
-		for x, t := range d {
-			I[x] = w + (I[x]-w)*expNeg(t)
-		}
+		kernels.RunDecay(I, d, u.w)
 	}
-}
-
-// expNeg returns e^{−t} for t ≥ 0: a Taylor polynomial below 0.03 (error
-// below t⁵/120 ≈ 2e-10), 0 above 50 (below 2e-22), math.Exp between. Most
-// runs of a large line list are optically thin, so this saves most calls.
-func expNeg(t float64) float64 {
-	switch {
-	case t < 0.03:
-		return 1 - t*(1-t*0.5*(1-t*(1.0/3)*(1-t*0.25)))
-	case t > 50:
-		return 0
-	}
-	return math.Exp(-t)
 }

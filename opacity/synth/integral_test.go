@@ -435,16 +435,6 @@ func TestGrouping(t *testing.T) {
 	}
 }
 
-// TestExpNeg checks the fast e^{−t} against math.Exp across its branches.
-func TestExpNeg(t *testing.T) {
-	t.Parallel()
-	for _, x := range []float64{0, 1e-9, 1e-4, 0.01, 0.0299, 0.03, 0.5, 3, 49.9, 50.1, 700} {
-		if got, want := expNeg(x), math.Exp(-x); !scalar.EqualWithinAbsOrRel(got, want, 1e-20, 1e-9) {
-			t.Errorf("expNeg(%g) = %g, want %g", x, got, want)
-		}
-	}
-}
-
 // TestSingleLineDirect compares a whole single-line profile, with and
 // without occultation, with the independent direct integration (exact
 // resonance planes, analytic τ(r), Gauss–Legendre in p).

@@ -96,3 +96,28 @@ func scatterAVX2(I []float64, a0, a1 []float32, f, w, c float64)
 //
 //go:noescape
 func scatterAVX512(I []float64, a0, a1 []float32, f, w, c float64)
+
+// runDecayVec is RunDecay's loop over the first 4·⌊len(I)/4⌋ points with
+// the widest vector loop in use (lanes must be > 0).
+func runDecayVec(I, t []float64, w float64) {
+	t = t[:len(I)] // the kernels trust this length
+	n8 := 0
+	if lanes == 8 {
+		n8 = len(I) &^ 7
+		runDecayAVX512(I[:n8], t[:n8], w)
+	}
+	runDecayAVX2(I[n8:], t[n8:], w)
+}
+
+// runDecayAVX2 is runDecayGo four points at a time, for the first
+// 4·⌊len(I)/4⌋ points (the escape by the steps of Escape: same bits). t
+// must be at least as long as that.
+//
+//go:noescape
+func runDecayAVX2(I, t []float64, w float64)
+
+// runDecayAVX512 is runDecayAVX2 eight points at a time, for the first
+// 8·⌊len(I)/8⌋ points.
+//
+//go:noescape
+func runDecayAVX512(I, t []float64, w float64)

@@ -360,3 +360,69 @@ sloop512:
 
 sdone512:
 	RET
+
+// The run-decay loops: a depth that is not positive becomes 0 (VMAXPD
+// returns its second operand, 0, for NaN and for ±0, as the Go loop's
+// !(t > 0) does), ESCAPE gives e^{−t} − 1 = −Escape(t), and
+// I + (I − w)·(e^{−t} − 1) is the Go loop's I − (I − w)·Escape(t) bit for
+// bit (a sign change is exact).
+
+CONST4(zero, 0x0000000000000000)
+
+// func runDecayAVX2(I, t []float64, w float64)
+TEXT ·runDecayAVX2(SB), NOSPLIT, $0-56
+	MOVQ         I_base+0(FP), DI
+	MOVQ         I_len+8(FP), CX
+	MOVQ         t_base+24(FP), SI
+	SHRQ         $2, CX
+	JZ           rdone
+	VBROADCASTSD w+48(FP), Y6
+	VMOVUPD      zero<>(SB), Y7
+	LOADTABLE
+
+rloop:
+	VMOVUPD (SI), Y0
+	VMAXPD  Y7, Y0, Y0 // max(t, 0); NaN → 0
+	ESCAPE
+	VMOVUPD (DI), Y8
+	VSUBPD  Y6, Y8, Y1 // I − w
+	VMULPD  Y3, Y1, Y1 // (I − w)(e^{−t} − 1)
+	VADDPD  Y1, Y8, Y8
+	VMOVUPD Y8, (DI)
+	ADDQ    $32, SI
+	ADDQ    $32, DI
+	DECQ    CX
+	JNZ     rloop
+	VZEROUPPER
+
+rdone:
+	RET
+
+// func runDecayAVX512(I, t []float64, w float64)
+TEXT ·runDecayAVX512(SB), NOSPLIT, $0-56
+	MOVQ         I_base+0(FP), DI
+	MOVQ         I_len+8(FP), CX
+	MOVQ         t_base+24(FP), SI
+	SHRQ         $3, CX
+	JZ           rdone512
+	VBROADCASTSD w+48(FP), Z6
+	VBROADCASTSD zero<>(SB), Z7
+	LOADCONSTS512
+
+rloop512:
+	VMOVUPD (SI), Z0
+	VMAXPD  Z7, Z0, Z0
+	ESCAPE512
+	VMOVUPD (DI), Z8
+	VSUBPD  Z6, Z8, Z1
+	VMULPD  Z3, Z1, Z1
+	VADDPD  Z1, Z8, Z8
+	VMOVUPD Z8, (DI)
+	ADDQ    $64, SI
+	ADDQ    $64, DI
+	DECQ    CX
+	JNZ     rloop512
+	VZEROUPPER
+
+rdone512:
+	RET

@@ -15,3 +15,6 @@ func escapesVec(dst, tau, wl []float64) { escapesGo(dst, tau, wl) }
 
 // scatterVec is scatterGo (see linesVec).
 func scatterVec(I []float64, a0, a1 []float32, f, w, c float64) { scatterGo(I, a0, a1, f, w, c) }
+
+// runDecayVec is runDecayGo (see linesVec).
+func runDecayVec(I, t []float64, w float64) { runDecayGo(I, t, w) }
