@@ -159,10 +159,18 @@ func (c Composition) WithFraction(sym string, x float64) (Composition, error) {
 		return Composition{}, fmt.Errorf("mass fraction of %s %g: want 0 < X < 1", e.Symbol, x)
 	}
 	syms, xs := c.Fractions()
+	// The others share 1 − x in their present ratios: scaled by
+	// (1 − x)/(1 − x_old), x_old the element's fraction now (0 if absent).
+	old := 0.0
+	for i, s := range syms {
+		if s == e.Symbol {
+			old = xs[i]
+		}
+	}
 	var parts []string
 	for i, s := range syms {
 		if s != e.Symbol {
-			parts = append(parts, s+"="+strconv.FormatFloat(xs[i]*(1-x), 'g', -1, 64))
+			parts = append(parts, s+"="+strconv.FormatFloat(xs[i]*(1-x)/(1-old), 'g', -1, 64))
 		}
 	}
 	if len(parts) == 0 {
@@ -170,4 +178,56 @@ func (c Composition) WithFraction(sym string, x float64) (Composition, error) {
 	}
 	parts = append(parts, e.Symbol+"="+strconv.FormatFloat(x, 'g', -1, 64))
 	return ParseComposition(strings.Join(parts, ","))
+}
+
+// Without returns c without element sym (the others keep their weights,
+// so their normalised fractions rise in proportion); removing the last
+// element, or one c does not hold, is an error.
+func (c Composition) Without(sym string) (Composition, error) {
+	syms, xs := c.Fractions()
+	var parts []string
+	found := false
+	for i, s := range syms {
+		if s == sym {
+			found = true
+			continue
+		}
+		parts = append(parts, s+"="+strconv.FormatFloat(xs[i], 'g', -1, 64))
+	}
+	switch {
+	case !found:
+		return Composition{}, fmt.Errorf("%s is not in the mix", sym)
+	case len(parts) == 0:
+		return Composition{}, fmt.Errorf("%s is the only element: the mix cannot be empty", sym)
+	}
+	return ParseComposition(strings.Join(parts, ","))
+}
+
+// NamedMix is a starting composition of our own with a name and a note.
+type NamedMix struct {
+	Name, Note  string
+	Composition Composition
+}
+
+// NamedMixes are starting compositions for the workbench's composition
+// controls. They are INVENTED round-number mixes for a first look, shaped
+// only qualitatively after the trade's usual light (first-peak, lanthanide-
+// poor) and heavy (lanthanide-rich) components; they are not results of
+// any nucleosynthesis calculation or fit.
+func NamedMixes() []NamedMix {
+	mk := func(name, note, text string) NamedMix {
+		c, err := ParseComposition(text)
+		if err != nil {
+			panic("core: named mix " + name + ": " + err.Error())
+		}
+		return NamedMix{Name: name, Note: note, Composition: c}
+	}
+	return []NamedMix{
+		mk("light, lanthanide-poor (invented)", "first-peak elements with a trace of lanthanides: blue, fast-fading spectra",
+			"Ca=0.002,Se=0.25,Kr=0.25,Sr=0.05,Y=0.005,Zr=0.01,Mo=0.05,Ru=0.05,Pd=0.05,Te=0.2,Xe=0.0829,Nd=1e-4"),
+		mk("lanthanide-rich (invented)", "a few per cent of lanthanides: red, slowly evolving spectra",
+			"Se=0.1,Kr=0.12,Sr=0.02,Zr=0.005,Ru=0.05,Te=0.3,Xe=0.3,Ce=0.02,Nd=0.05,Sm=0.03,Eu=0.005"),
+		mk("strontium only (invented)", "one light element in an inert filler, to isolate its lines",
+			"Sr=0.05,Kr=0.95"),
+	}
 }

@@ -86,7 +86,45 @@ func TestWithFraction(t *testing.T) {
 			t.Errorf("fraction %g accepted", x)
 		}
 	}
+	// An element already in the mix: it gets exactly x, the others keep
+	// their ratio (Sr:Ca = 3:1 of the remaining 0.5).
+	c2, err := c.WithFraction("Nd", 0.5)
+	if err != nil {
+		t.Fatal(err)
+	}
+	syms, xs = c2.Fractions()
+	want = map[string]float64{"Sr": 0.375, "Ca": 0.125, "Nd": 0.5}
+	for i, s := range syms {
+		if math.Abs(xs[i]-want[s]) > 1e-12 {
+			t.Errorf("Nd raised to 0.5: %s %g, want %g", s, xs[i], want[s])
+		}
+	}
 	if _, err := mustComp(t, "Nd=1").WithFraction("Nd", 0.5); err == nil {
 		t.Error("a one-element mix given a fraction below 1 was accepted")
+	}
+}
+
+// TestWithoutAndNamedMixes: removing an element renormalises the rest in
+// proportion; the named mixes parse and say they are invented.
+func TestWithoutAndNamedMixes(t *testing.T) {
+	c := mustComp(t, "Sr=0.5,Nd=0.25,Kr=0.25")
+	w, err := c.Without("Sr")
+	if err != nil {
+		t.Fatal(err)
+	}
+	syms, x := w.Fractions()
+	if len(syms) != 2 || math.Abs(x[0]-0.5) > 1e-12 || math.Abs(x[1]-0.5) > 1e-12 {
+		t.Errorf("without Sr: %v %v", syms, x)
+	}
+	if _, err := c.Without("Ce"); err == nil {
+		t.Error("removing an element the mix lacks: no error")
+	}
+	if _, err := mustComp(t, "Sr=1").Without("Sr"); err == nil {
+		t.Error("removing the last element: no error")
+	}
+	for _, m := range NamedMixes() {
+		if !strings.Contains(m.Name, "invented") || m.Composition.IsZero() {
+			t.Errorf("named mix %+v", m)
+		}
 	}
 }

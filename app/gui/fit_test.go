@@ -426,3 +426,60 @@ func TestDropFiles(t *testing.T) {
 		t.Errorf("two files: status %q", nw2.status.Text)
 	}
 }
+
+// TestCompositionRows drives the element rows: one row per element; an
+// exact entry sets that element and renormalises the others (their rows
+// follow); switching an element off takes it out and back on restores its
+// fraction; a named mix replaces the composition; a bad entry changes
+// nothing and says why.
+func TestCompositionRows(t *testing.T) {
+	wb := cheapWorkbench(t)
+	ch := make(chan struct{}, 16)
+	wb.done = func(*core.Overlay, error) { ch <- struct{}{} }
+	c, _ := core.ParseComposition("Sr=0.5,Nd=0.25,Kr=0.25")
+	wb.sess.MassFractions = c
+	wb.syncControls()
+	row := func(sym string) *compRow {
+		for _, r := range wb.comp.rows {
+			if r.sym == sym {
+				return r
+			}
+		}
+		t.Fatalf("no row for %s", sym)
+		return nil
+	}
+	if len(wb.comp.rows) != 3 {
+		t.Fatalf("%d rows for 3 elements", len(wb.comp.rows))
+	}
+	nd := row("Nd")
+	nd.entry.SetText("0.5")
+	nd.entry.OnSubmitted("0.5")
+	<-ch
+	syms, x := wb.sess.MassFractions.Fractions()
+	if len(syms) != 3 || math.Abs(x[0]-0.5) > 1e-12 || syms[0] != "Nd" && syms[1] != "Nd" {
+		t.Errorf("after Nd = 0.5: %v %v", syms, x)
+	}
+	if got := row("Sr").entry.Text; got != "0.3333" {
+		t.Errorf("the Sr row shows %q after renormalisation, want 0.3333", got)
+	}
+	row("Kr").on.SetChecked(false)
+	<-ch
+	if strings.Contains(wb.sess.MassFractions.String(), "Kr") || len(wb.comp.rows) != 3 || row("Kr").on.Checked {
+		t.Errorf("Kr switched off: %q, %d rows", wb.sess.MassFractions, len(wb.comp.rows))
+	}
+	row("Kr").on.SetChecked(true)
+	<-ch
+	if _, x := wb.sess.MassFractions.Fractions(); !strings.Contains(wb.sess.MassFractions.String(), "Kr") || len(x) != 3 {
+		t.Errorf("Kr back on: %q", wb.sess.MassFractions)
+	}
+	before := wb.sess.MassFractions
+	row("Sr").entry.OnSubmitted("2")
+	if wb.sess.MassFractions != before || !strings.Contains(wb.status.Text, "not applied") {
+		t.Errorf("a fraction of 2 applied: %q, status %q", wb.sess.MassFractions, wb.status.Text)
+	}
+	wb.comp.mix.SetSelectedIndex(2)
+	<-ch
+	if want := core.NamedMixes()[2].Composition; wb.sess.MassFractions != want || wb.fractions.Text != want.String() {
+		t.Errorf("named mix: session %q, text %q, want %q", wb.sess.MassFractions, wb.fractions.Text, want)
+	}
+}

@@ -120,6 +120,8 @@ type workbench struct {
 	// savedCands are the candidates as last saved or opened: quitting
 	// with others asks first.
 	savedCands []core.Candidate
+	// comp holds the composition's element rows (gui_composition.go).
+	comp compRows
 	// note is a sentence the next model's status line starts with (what
 	// an epoch switch set), then cleared.
 	note    string
@@ -217,6 +219,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	apply := widget.NewButton("Apply composition", func() { wb.applyComposition() })
 	wb.applyBtn = apply
 	fitBtn := widget.NewButton("Fit the composition…", func() { wb.fitDialog() })
+	rowsPanel := wb.newCompRows()
 	wb.preview = widget.NewCheck("Absorption-only preview (fast, approximate)", func(on bool) {
 		if on != wb.sess.Preview {
 			wb.sess.Preview = on
@@ -272,6 +275,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 		widget.NewLabel("Inner zone: its own mass fractions, up to the boundary"), wb.innerFractions,
 		container.NewBorder(nil, nil, widget.NewLabel("boundary"), nil, wb.boundary), wb.zoneLabel,
 		apply, fitBtn, wb.lineless,
+		widget.NewAccordion(widget.NewAccordionItem("Element by element", rowsPanel)),
 		wb.preview, reset,
 		widget.NewSeparator(),
 		widget.NewLabelWithStyle("Candidates", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}), keep, candScroll,
@@ -396,6 +400,7 @@ func (wb *workbench) syncControls() {
 	wb.preview.SetChecked(wb.sess.Preview)
 	wb.unitSel.SetSelected(core.UnitOf(wb.sess.WavelengthUnit).Name)
 	wb.syncKnockOut()
+	wb.syncRows()
 	wb.showValues()
 }
 
