@@ -29,7 +29,10 @@ headless:
 run: build
 	./$(BIN)
 
-test: deps
+# test also needs poppler-utils: app/figure reads its exported PDFs back with
+# pdftotext and pdftoppm.
+test:
+	@scripts/deps.sh poppler-utils
 	@test -z "$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go'))" || { echo "gofmt needed on:"; gofmt -l .; exit 1; }
 	$(GO) vet ./...
 	$(GO) test -race -timeout 15m $(PURE)

@@ -12,7 +12,6 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
-	_ "gonum.org/v1/plot/vg/vgpdf" // PDF export
 	_ "gonum.org/v1/plot/vg/vgsvg" // SVG export
 
 	"broadline/app/core"
@@ -84,9 +83,14 @@ func (f *Captioned) Export(path string, w, h vg.Length) error {
 	if !ok {
 		return fmt.Errorf("export figure: %s: unknown file type (use .png, .svg or .pdf)", path)
 	}
-	c, err := draw.NewFormattedCanvas(w, h, format)
-	if err != nil {
-		return fmt.Errorf("export figure: %w", err)
+	var c vg.CanvasWriterTo
+	if format == "pdf" {
+		c = newPDF(w, h) // not gonum's vgpdf: see pdf.go
+	} else {
+		var err error
+		if c, err = draw.NewFormattedCanvas(w, h, format); err != nil {
+			return fmt.Errorf("export figure: %w", err)
+		}
 	}
 	f.draw(c)
 	var buf bytes.Buffer
