@@ -2,8 +2,10 @@ package figure
 
 import (
 	"bytes"
+	"fmt"
 	"image/color"
 	"image/png"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -125,5 +127,68 @@ func TestStraightRGBA(t *testing.T) {
 	r, g, b, a := straightRGBA(Palette.Masked)
 	if r != 86 || g != 180 || b != 233 || a < 0.27 || a > 0.28 {
 		t.Errorf("straightRGBA(%v) = %d,%d,%d,%.3f", Palette.Masked, r, g, b, a)
+	}
+}
+
+// TestExportSizes: a PNG at a journal size has the column's width in
+// pixels at its resolution (3.5 in × 300 dpi = 1050 px; 7.2 in × 300 dpi =
+// 2160 px) and the plot's height plus the caption's; a longer caption
+// makes the file taller, not the plot shorter. SVG and PDF take the same
+// size in points (72 per inch).
+func TestExportSizes(t *testing.T) {
+	b := demoBench(t)
+	obs := b.Observed[0]
+	p, err := Spectrum(obs, nil, "sizes", core.UnitOf(""))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	short := &Captioned{Plot: p, Caption: []string{"one line"}}
+	long := &Captioned{Plot: p, Caption: []string{strings.Repeat("a longer caption of many words ", 20)}}
+	for _, name := range []string{"one journal column (3.5 in, 300 dpi)", "two journal columns (7.2 in, 300 dpi)"} {
+		s, ok := SizeNamed(name)
+		if !ok {
+			t.Fatalf("no size %q in %q", name, SizeNames())
+		}
+		var heights []int
+		for i, fig := range []*Captioned{short, long} {
+			path := filepath.Join(dir, fmt.Sprintf("f%d.png", i))
+			if err := fig.ExportSize(path, s); err != nil {
+				t.Fatal(err)
+			}
+			data, err := os.ReadFile(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			cfg, err := png.DecodeConfig(bytes.NewReader(data))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if want := int(math.Round(float64(s.Width/vg.Inch) * float64(s.DPI))); cfg.Width != want {
+				t.Errorf("%s: %d px wide, want %d", name, cfg.Width, want)
+			}
+			if min := int(float64(s.PlotHeight/vg.Inch) * float64(s.DPI)); cfg.Height <= min {
+				t.Errorf("%s: %d px high, not more than the plot's %d", name, cfg.Height, min)
+			}
+			heights = append(heights, cfg.Height)
+		}
+		if heights[1] <= heights[0] {
+			t.Errorf("%s: a longer caption gave heights %v", name, heights)
+		}
+		pdfPath := filepath.Join(dir, "f.pdf")
+		if err := short.ExportSize(pdfPath, s); err != nil {
+			t.Fatal(err)
+		}
+		out, err := exec.Command(poppler(t, "pdfinfo"), pdfPath).Output()
+		if err != nil {
+			t.Fatalf("pdfinfo: %v", err)
+		}
+		want := fmt.Sprintf("Page size: %g x ", math.Round(s.Width.Points()*100)/100)
+		if !strings.Contains(strings.Join(strings.Fields(string(out)), " "), want) {
+			t.Errorf("%s: pdfinfo says\n%s\nwant %q", name, out, want)
+		}
+	}
+	if err := short.ExportSize(filepath.Join(dir, "x.png"), Size{Name: "none"}); err == nil {
+		t.Error("a zero size was accepted")
 	}
 }
