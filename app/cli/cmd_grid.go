@@ -30,7 +30,7 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 	if len(args) > 0 && args[0] == "merge" {
 		return runGridMerge(c, args[1:], stdout, stderr)
 	}
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	dataset := fs.String("dataset", "", "dataset `FILE` (JSON, see README; required)")
 	specPath := fs.String("spec", "", "grid spec `FILE` (JSON, see README \"Running a grid on a cluster\"; required)")
 	out := fs.String("out", "grid.csv", "result `FILE`; a shard I/N writes FILE with .partI-of-N before the extension")
@@ -270,7 +270,7 @@ func gridInputs(b *core.Bench) (grid.Inputs, error) {
 }
 
 func runGridMerge(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	pos, err := fs.parse(args)
 	if err != nil {
 		return err

@@ -31,7 +31,7 @@ func init() {
 // elements' shares of the absorbed equivalent width in the feature's
 // window and the strongest lines acting there (synth.Attribute).
 func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	f := addModelFlags(fs, true)
 	specPath := fs.String("spectrum", "", "observed spectrum `FILE` (rest frame; our text format or FITS; required without --dataset, whose epoch's spectrum is the default)")
 	minSig := fs.Float64("significance", 5, "smallest significance (depth/σ) of a feature to attribute")
