@@ -7,7 +7,7 @@ BIN     := bin/broadline
 # without it, since a race build recompiles the C parts (~4 min).
 # HEAVY are the injection–recovery fits, skipped under the race detector
 # (which slows the synthesis some twentyfold) and run once without it.
-HEAVY   := TestFitRecovers|TestFitKeepsInnerZone|TestInjectionRecovery|TestJointBeatsSingle|TestSampleDeterministic|TestFitCommand$$
+HEAVY   := TestFitRecovers|TestFitKeepsInnerZone|TestInjectionRecovery|TestJointBeatsSingle|TestSampleDeterministic|TestFitCommand$$|TestReadmeExamples
 PURE    := ./physics/... ./internal/... ./linelists/... ./spectra/... ./opacity/... ./tools/... ./app/core/... ./app/cli/... ./app/figure/... ./grid/...
 export LANG ?= en_US.UTF-8
 
