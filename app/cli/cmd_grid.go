@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"io"
@@ -69,13 +70,18 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 			shard = s
 		}
 	}
-	f, err := os.Open(*specPath)
+	data, err := os.ReadFile(*specPath)
 	if err != nil {
 		return fileError("--spec", err)
 	}
-	spec, err := grid.DecodeSpec(f, *specPath)
-	f.Close()
+	spec, err := grid.DecodeSpec(bytes.NewReader(data), *specPath)
 	if err != nil {
+		// A JSON mistake is worded by core.DecodeJSON (line, column, what
+		// was expected); grid's own checks of the values read as they are.
+		var probe grid.Spec
+		if jerr := core.DecodeJSON(data, &probe); jerr != nil && len(data) <= grid.MaxSpecBytes {
+			return fileError("--spec", fmt.Errorf("%s: grid spec: %w", *specPath, jerr))
+		}
 		return fileError("--spec", err)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)

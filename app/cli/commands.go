@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"broadline/app/core"
 	"bytes"
 	"errors"
 	"flag"
@@ -84,7 +85,7 @@ func dispatch(args []string, stdout, stderr io.Writer) int {
 	if errors.Is(err, flag.ErrHelp) {
 		return 0
 	}
-	fmt.Fprintf(stderr, "broadline %s: %v\n", name, firstLine(err.Error()))
+	fmt.Fprintf(stderr, "broadline %s: %v\n", name, firstLine(core.UserMessage(err)))
 	var ue *usageError
 	if errors.As(err, &ue) {
 		return 2
