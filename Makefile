@@ -7,7 +7,7 @@ BIN     := bin/broadline
 # without it, since a race build recompiles the C parts (~4 min).
 # HEAVY are the injection–recovery fits, skipped under the race detector
 # (which slows the synthesis some twentyfold) and run once without it.
-HEAVY   := TestFitRecovers|TestFitKeepsInnerZone|TestInjectionRecovery|TestJointBeatsSingle|TestSampleDeterministic|TestFitCommand$$
+HEAVY   := TestFitRecovers|TestFitKeepsInnerZone|TestInjectionRecovery|TestJointBeatsSingle|TestSampleDeterministic|TestFitCommand$$|TestReadmeExamples
 PURE    := ./physics/... ./internal/... ./linelists/... ./spectra/... ./opacity/... ./tools/... ./app/core/... ./app/cli/... ./app/figure/... ./grid/...
 export LANG ?= en_US.UTF-8
 
@@ -29,7 +29,10 @@ headless:
 run: build
 	./$(BIN)
 
-test: deps
+# test also needs poppler-utils: app/figure reads its exported PDFs back with
+# pdftotext and pdftoppm.
+test:
+	@scripts/deps.sh poppler-utils
 	@test -z "$$(gofmt -l $$(git ls-files '*.go' 2>/dev/null || find . -name '*.go'))" || { echo "gofmt needed on:"; gofmt -l .; exit 1; }
 	$(GO) vet ./...
 	$(GO) test -race -timeout 15m $(PURE)

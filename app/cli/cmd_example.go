@@ -19,7 +19,7 @@ func init() {
 }
 
 func runExample(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	pos, err := fs.parse(args)
 	if err != nil {
 		return err

@@ -52,7 +52,7 @@ type fitReport struct {
 }
 
 func runFit(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	dataset := fs.String("dataset", "", "dataset `FILE` (JSON, see README; required): spectra, line lists, ejecta, distance, starting values")
 	var free, epochList listFlag
 	fs.Var(&free, "free", "`ELEMENTS` whose mass fractions are fitted, e.g. Sr,Ce,Nd (comma-separated or repeated; "+

@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"bytes"
 	"context"
 	"fmt"
 	"io"
@@ -30,7 +31,7 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 	if len(args) > 0 && args[0] == "merge" {
 		return runGridMerge(c, args[1:], stdout, stderr)
 	}
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	dataset := fs.String("dataset", "", "dataset `FILE` (JSON, see README; required)")
 	specPath := fs.String("spec", "", "grid spec `FILE` (JSON, see README \"Running a grid on a cluster\"; required)")
 	out := fs.String("out", "grid.csv", "result `FILE`; a shard I/N writes FILE with .partI-of-N before the extension")
@@ -69,13 +70,18 @@ func runGrid(c *command, args []string, stdout, stderr io.Writer) error {
 			shard = s
 		}
 	}
-	f, err := os.Open(*specPath)
+	data, err := os.ReadFile(*specPath)
 	if err != nil {
 		return fileError("--spec", err)
 	}
-	spec, err := grid.DecodeSpec(f, *specPath)
-	f.Close()
+	spec, err := grid.DecodeSpec(bytes.NewReader(data), *specPath)
 	if err != nil {
+		// A JSON mistake is worded by core.DecodeJSON (line, column, what
+		// was expected); grid's own checks of the values read as they are.
+		var probe grid.Spec
+		if jerr := core.DecodeJSON(data, &probe); jerr != nil && len(data) <= grid.MaxSpecBytes {
+			return fileError("--spec", fmt.Errorf("%s: grid spec: %w", *specPath, jerr))
+		}
 		return fileError("--spec", err)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
@@ -270,7 +276,7 @@ func gridInputs(b *core.Bench) (grid.Inputs, error) {
 }
 
 func runGridMerge(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	pos, err := fs.parse(args)
 	if err != nil {
 		return err

@@ -2,13 +2,11 @@ package cli
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
 	"os"
 	"os/signal"
-	"strconv"
 
 	"broadline/app/core"
 	"broadline/opacity/fit"
@@ -31,7 +29,7 @@ func init() {
 // elements' shares of the absorbed equivalent width in the feature's
 // window and the strongest lines acting there (synth.Attribute).
 func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	f := addModelFlags(fs, true)
 	specPath := fs.String("spectrum", "", "observed spectrum `FILE` (rest frame; our text format or FITS; required without --dataset, whose epoch's spectrum is the default)")
 	minSig := fs.Float64("significance", 5, "smallest significance (depth/σ) of a feature to attribute")
@@ -72,25 +70,11 @@ func runIdentify(c *command, args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	w := csv.NewWriter(stdout)
-	if err := w.Write([]string{"minimum_um", "depth", "width_um", "significance", "absorbed_A", "elements", "lines"}); err != nil {
+	table, err := core.FeaturesCSV(feats, attr)
+	if err != nil {
 		return err
 	}
-	for i, feat := range feats {
-		a := attr[i]
-		absorbed := ""
-		if a != nil {
-			absorbed = strconv.FormatFloat(a.Absorbed, 'f', 1, 64)
-		}
-		if err := w.Write([]string{
-			strconv.FormatFloat(feat.Wavelength/1e4, 'f', 5, 64), strconv.FormatFloat(feat.Depth, 'f', 4, 64),
-			strconv.FormatFloat(feat.Width/1e4, 'f', 5, 64), strconv.FormatFloat(feat.Significance, 'f', 1, 64),
-			absorbed, core.ElementsText(a), core.LinesText(a)}); err != nil {
-			return err
-		}
-	}
-	w.Flush()
-	if err := w.Error(); err != nil {
+	if _, err := stdout.Write(table); err != nil {
 		return err
 	}
 	var warnings []string

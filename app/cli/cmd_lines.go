@@ -49,7 +49,7 @@ type linesFlags struct {
 }
 
 func runLines(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	var f linesFlags
 	fs.StringVar(&f.out, "out", "", "convert: output file in broadline's format (gzip-compressed if it ends in .gz)")
 	fs.StringVar(&f.columns, "columns", "", "import a table: field=column[:unit],… e.g. wavelength=1:nm,species=2,log_gf=3,lower_energy=4:cm-1,lower_j=5 (column by 1-based number or header name)")

@@ -439,7 +439,7 @@ func (su *modelSetup) describe(stderr io.Writer, name string, preview bool, warn
 }
 
 func runModel(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	f := addModelFlags(fs, true)
 	pos, err := fs.parse(args)
 	if err != nil {

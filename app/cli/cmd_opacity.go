@@ -29,7 +29,7 @@ func init() {
 const maxOpacityBins = 10_000_000
 
 func runOpacity(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	pf := addPlasmaFlags(fs, "line-list `FILE` (required; repeatable, or comma-separated)")
 	daysF := floatFlag(fs, "days", "time since explosion `D` in days (required, > 0)")
 	fromF := floatFlag(fs, "from-um", "start `UM` of the first bin, µm, vacuum (required)")

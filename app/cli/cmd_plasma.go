@@ -231,7 +231,7 @@ type plasmaSpecJSON struct {
 const groundOnly = "ground-level statistical weights of the element table only (no --lines or --levels given): lower bounds of the true partition functions"
 
 func runPlasma(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	pf := addPlasmaFlags(fs, "line-list `FILE` whose levels give the partition functions (optional; repeatable, or comma-separated)")
 	pos, err := fs.parse(args)
 	if err != nil {

@@ -72,7 +72,7 @@ type prepBlackbody struct {
 }
 
 func runPrep(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	var f prepFlags
 	fs.BoolVar(&f.air, "air", false, "the file's wavelengths are in air (overrides the file; converted with Morton 2000)")
 	fs.BoolVar(&f.vacuum, "vacuum", false, "the file's wavelengths are in vacuum (overrides the file)")

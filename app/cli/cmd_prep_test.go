@@ -182,7 +182,7 @@ func TestPrepUsageErrors(t *testing.T) {
 			t.Errorf("%v: status %d, stdout %q, stderr %q; want 2, nothing, one line", args, st, out, errs)
 		}
 	}
-	if st, out, errs := runPrepArgs(t, "-h"); st != 0 || out != "" || !strings.Contains(errs, "--normalize-blackbody") {
+	if st, out, errs := runPrepArgs(t, "-h"); st != 0 || errs != "" || !strings.Contains(out, "--normalize-blackbody") {
 		t.Errorf("-h: status %d, stdout %q, stderr %q", st, out, errs)
 	}
 	// Bad data: a failure (1) naming file:line, and no partial output.

@@ -33,16 +33,18 @@ func init() {
 // --distance-mpc), refines the best, and writes the grid as CSV; the best
 // value goes to stderr.
 func runSweep(c *command, args []string, stdout, stderr io.Writer) error {
-	fs := newFlagSet(c, stderr)
+	fs := newFlagSet(c, stdout)
 	f := addModelFlags(fs, true)
 	specPath := fs.String("spectrum", "", "observed spectrum `FILE` with uncertainties, in our text format or FITS "+
 		"(e.g. written by prep: rest frame, dereddened, telluric bands flagged; required without --dataset, whose epoch's spectrum is the default)")
 	var lo, hi velocityFlag
-	fs.Var(&lo, "from-velocity", "lowest photosphere `velocity` of the sweep, e.g. 0.1c (required)")
-	fs.Var(&hi, "to-velocity", "highest photosphere `velocity`, below --outer-velocity (required)")
+	fs.Var(&lo, "from-velocity", "lowest photosphere `velocity` of the sweep, e.g. 0.1c (required for a velocity sweep, i.e. without --from-temperature)")
+	fs.Var(&hi, "to-velocity", "highest photosphere `velocity`, below --outer-velocity (required for a velocity sweep)")
 	var tlo, thi numberFlag
-	fs.Var(&tlo, "from-temperature", "sweep the photosphere temperature instead, from this many `K` (with --to-temperature and --photosphere-velocity)")
+	fs.Var(&tlo, "from-temperature", "sweep the photosphere temperature instead, from this many `K` (with --to-temperature, and --photosphere-velocity unless --dataset gives it)")
 	fs.Var(&thi, "to-temperature", "highest photosphere temperature of the sweep, `K`")
+	// A velocity sweep sets the photosphere velocity itself.
+	fs.Lookup("photosphere-velocity").Usage = "photosphere `velocity` of a temperature sweep, e.g. 0.2c or 60000km/s (required for one without --dataset; refused in a velocity sweep, which sets it)"
 	steps := fs.Int("steps", 21, "number of velocities, evenly spaced (3–400); the lowest is then refined with 10 more syntheses")
 	pos, err := fs.parse(args)
 	if err != nil {

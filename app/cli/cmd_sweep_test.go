@@ -118,14 +118,39 @@ func TestIdentifyCommand(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != 3 || rows[0][0] != "minimum_um" || len(rows[0]) != 7 {
+	if len(rows) != 3 || rows[0][0] != "minimum_um" || rows[0][len(rows[0])-1] != "lines" {
 		t.Fatalf("CSV %q", out)
 	}
 	if !strings.HasPrefix(rows[2][0], "0.784") {
 		t.Errorf("second feature at %s µm, want 0.784", rows[2][0])
 	}
-	if !strings.Contains(rows[2][5], "Sr ") || !strings.Contains(rows[2][6], "Sr II 10") {
-		t.Errorf("0.78-µm feature: elements %q, lines %q", rows[2][5], rows[2][6])
+	// One column per element share (share_Sr …), each a number; the
+	// shares of a feature add up to 1 (synth.ElementShare.Share).
+	col := map[string]int{}
+	for i, h := range rows[0] {
+		col[h] = i
+	}
+	for r := 1; r < len(rows); r++ {
+		sum := 0.0
+		for h, i := range col {
+			if strings.HasPrefix(h, "share_") {
+				v, err := strconv.ParseFloat(rows[r][i], 64)
+				if err != nil {
+					t.Fatalf("row %d, %s = %q: %v", r, h, rows[r][i], err)
+				}
+				sum += v
+			}
+		}
+		if math.Abs(sum-1) > 1e-3 {
+			t.Errorf("row %d: shares add up to %g", r, sum)
+		}
+	}
+	sr, ok := col["share_Sr"]
+	if !ok {
+		t.Fatalf("no share_Sr column in %q", rows[0])
+	}
+	if v, _ := strconv.ParseFloat(rows[2][sr], 64); !(v > 0.05) || !strings.Contains(rows[2][col["lines"]], "Sr II 10") {
+		t.Errorf("0.78-µm feature: Sr share %q, lines %q", rows[2][sr], rows[2][col["lines"]])
 	}
 	if !strings.Contains(errs, "hypothesis") {
 		t.Errorf("stderr lacks the caution: %q", errs)

@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"broadline/app/core"
 	"bytes"
 	"errors"
 	"flag"
@@ -84,7 +85,7 @@ func dispatch(args []string, stdout, stderr io.Writer) int {
 	if errors.Is(err, flag.ErrHelp) {
 		return 0
 	}
-	fmt.Fprintf(stderr, "broadline %s: %v\n", name, firstLine(err.Error()))
+	fmt.Fprintf(stderr, "broadline %s: %v\n", name, firstLine(core.UserMessage(err)))
 	var ue *usageError
 	if errors.As(err, &ue) {
 		return 2
@@ -97,15 +98,16 @@ func dispatch(args []string, stdout, stderr io.Writer) int {
 type flagSet struct {
 	*flag.FlagSet
 	cmd    *command
-	stderr io.Writer
+	stdout io.Writer // where -h writes the usage
 }
 
-// newFlagSet returns an empty flag set for c.
-func newFlagSet(c *command, stderr io.Writer) *flagSet {
+// newFlagSet returns an empty flag set for c; -h prints its usage to
+// stdout (asked-for help is output, not a diagnostic).
+func newFlagSet(c *command, stdout io.Writer) *flagSet {
 	fs := flag.NewFlagSet(c.name, flag.ContinueOnError)
 	fs.SetOutput(io.Discard)
 	fs.Usage = func() {}
-	return &flagSet{FlagSet: fs, cmd: c, stderr: stderr}
+	return &flagSet{FlagSet: fs, cmd: c, stdout: stdout}
 }
 
 // parse parses args. Flags may come before or after positional arguments;
@@ -134,8 +136,8 @@ func (fs *flagSet) parse(args []string) ([]string, error) {
 }
 
 func (fs *flagSet) printUsage() {
-	fmt.Fprintf(fs.stderr, "usage: broadline %s %s\n%s\n\nflags:\n", fs.cmd.name, fs.cmd.args, fs.cmd.summary)
-	fs.SetOutput(fs.stderr)
+	fmt.Fprintf(fs.stdout, "usage: broadline %s %s\n%s\n\nflags:\n", fs.cmd.name, fs.cmd.args, fs.cmd.summary)
+	fs.SetOutput(fs.stdout)
 	fs.PrintDefaults()
 	fs.SetOutput(io.Discard)
 }

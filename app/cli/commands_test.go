@@ -47,7 +47,7 @@ func TestCommandFlags(t *testing.T) {
 	var gotN int
 	var gotPos []string
 	c.run = func(args []string, stdout, stderr io.Writer) error {
-		fs := newFlagSet(c, stderr)
+		fs := newFlagSet(c, stdout)
 		n := fs.Int("n", 0, "a number")
 		pos, err := fs.parse(args)
 		if err != nil {
@@ -140,4 +140,21 @@ func slicesWithout(args []string, name string) []string {
 		out = append(out, args[i])
 	}
 	return out
+}
+
+// TestHelpFlag: "broadline COMMAND -h" (and --help) prints the command's
+// usage and flags to stdout, nothing to stderr, and exits 0, for every
+// command (asked-for help is output, not an error).
+func TestHelpFlag(t *testing.T) {
+	for name := range commands {
+		for _, h := range []string{"-h", "--help"} {
+			st, out, errs := runCmd(name, h)
+			if st != 0 || errs != "" || !strings.Contains(out, "usage: broadline "+name) || !strings.Contains(out, "flags:") {
+				t.Errorf("%s %s: status %d, stdout %q, stderr %q", name, h, st, out, errs)
+			}
+		}
+	}
+	if len(commands) < 8 {
+		t.Errorf("only %d commands registered", len(commands))
+	}
 }

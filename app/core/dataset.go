@@ -205,9 +205,11 @@ const (
 // error, so a misspelt one is never ignored. name is for messages.
 func ReadDataset(r io.Reader, name string) (*Dataset, error) {
 	var d Dataset
-	dec := json.NewDecoder(io.LimitReader(r, maxDatasetBytes))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&d); err != nil {
+	data, err := readBounded(r, maxDatasetBytes, "dataset")
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", name, err)
+	}
+	if err := DecodeJSON(data, &d); err != nil {
 		return nil, fmt.Errorf("%s: dataset file: %w", name, err)
 	}
 	if err := d.Check(); err != nil {
@@ -242,24 +244,24 @@ func (d *Dataset) Check() error {
 	}
 	for i, e := range d.Epochs {
 		if e.File == "" {
-			return fmt.Errorf("epochs[%d].file: name the spectrum", i+1)
+			return fmt.Errorf("epoch %d: file: name the spectrum", i+1)
 		}
 		if err := e.Read.Check(); err != nil {
-			return fmt.Errorf("epochs[%d].%w", i+1, err)
+			return fmt.Errorf("epoch %d: %w", i+1, err)
 		}
 		if err := e.Prepare.Check(); err != nil {
-			return fmt.Errorf("epochs[%d].%w", i+1, err)
+			return fmt.Errorf("epoch %d: %w", i+1, err)
 		}
 		m := d.StartModel(i)
 		if err := d.Ejecta(m).Validate(); err != nil {
-			return fmt.Errorf("epochs[%d] (%s): %w", i+1, e.File, err)
+			return fmt.Errorf("epoch %d (%s): %w", i+1, e.File, err)
 		}
 		if !(e.PhotosphereVelocity >= MinVelocity && e.PhotosphereVelocity <= MaxVelocity(d)) {
-			return fmt.Errorf("epochs[%d].photosphere_velocity_c %g: want %g–%g (the workbench's range below outer_velocity_c)",
+			return fmt.Errorf("epoch %d: photosphere_velocity_c %g: want %g–%g (the workbench's range below outer_velocity_c)",
 				i+1, e.PhotosphereVelocity, MinVelocity, MaxVelocity(d))
 		}
 		if !(e.Temperature >= MinTemperature && e.Temperature <= MaxTemperature) {
-			return fmt.Errorf("epochs[%d].temperature_k %g: want %g–%g K (the workbench's range)", i+1, e.Temperature, MinTemperature, MaxTemperature)
+			return fmt.Errorf("epoch %d: temperature_k %g: want %g–%g K (the workbench's range)", i+1, e.Temperature, MinTemperature, MaxTemperature)
 		}
 	}
 	return nil
@@ -368,15 +370,15 @@ func readEpoch(d *Dataset, i int, read func(name string, opt spectra.ReadOptions
 	e := d.Epochs[i]
 	s, err := read(e.File, d.ReadOptions(i))
 	if err != nil {
-		return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+		return nil, nil, fmt.Errorf("epoch %d: %w", i+1, err)
 	}
 	if s.Uncertainty == nil {
-		return nil, nil, fmt.Errorf("epochs[%d]: %s has no uncertainty column; χ² needs one (name it with read.unc_column)", i+1, e.File)
+		return nil, nil, fmt.Errorf("epoch %d: %s has no uncertainty column; χ² needs one (name it with read.unc_column)", i+1, e.File)
 	}
 	if err := e.Prepare.apply(s); err != nil {
-		return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+		return nil, nil, fmt.Errorf("epoch %d: %w", i+1, err)
 	}
-	at := fmt.Sprintf("epochs[%d] (%s): ", i+1, e.File)
+	at := fmt.Sprintf("epoch %d (%s): ", i+1, e.File)
 	if s.Meta.Read != nil {
 		for _, w := range s.Meta.Read.Warnings {
 			warn = append(warn, at+w)
@@ -385,7 +387,7 @@ func readEpoch(d *Dataset, i int, read func(name string, opt spectra.ReadOptions
 	switch u := s.Meta.FluxUnit; {
 	case u.PerFrequency():
 		if err := s.ConvertFlux(spectra.FluxPerAngstrom); err != nil {
-			return nil, nil, fmt.Errorf("epochs[%d]: %w", i+1, err)
+			return nil, nil, fmt.Errorf("epoch %d: %w", i+1, err)
 		}
 		warn = append(warn, at+fmt.Sprintf("flux in %v converted to erg/s/cm2/A (F_λ = F_ν c/λ²) for the comparison with the model", u))
 	case u == spectra.FluxUnknown || u == spectra.FluxNormalized:

@@ -90,7 +90,7 @@ func TestDatasetFileErrors(t *testing.T) {
 		"composition":    {`"mass_fractions": "Ca=`, `"mass_fractions": "Qq=`, `mass fractions "Qq=`},
 		"inner zone":     {`"inner_mass_fractions": "Ca=`, `"inner_mass_fractions": "Ca=-`, `mass fractions "Ca=-`},
 		"zone boundary":  {`"zone_boundary_c": 0.16`, `"zone_boundary_c": 0.5`, "zone_boundary_c"},
-		"velocity order": {`"photosphere_velocity_c": 0.24`, `"photosphere_velocity_c": 0.4`, "epochs[1]"},
+		"velocity order": {`"photosphere_velocity_c": 0.24`, `"photosphere_velocity_c": 0.4`, "epoch 1 "},
 		"temperature":    {`"temperature_k": 5000`, `"temperature_k": 50`, "temperature_k"},
 		"missing file":   {`"spectra/demo_epoch1.txt"`, `"spectra/nothing.txt"`, "nothing.txt"},
 		"missing list":   {`"lines/demo_ca.txt.gz"`, `"lines/none.txt.gz"`, "none.txt.gz"},
@@ -207,7 +207,7 @@ func TestDatasetEpochReadOptions(t *testing.T) {
 			t.Fatalf("sample %d: %v ± %v, want %v ± %v", i, got.Flux[i], got.Uncertainty[i], orig.Flux[i], orig.Uncertainty[i])
 		}
 	}
-	if w := strings.Join(bm.LoadWarnings, "\n"); !strings.Contains(w, "epochs[1] (spectra/epoch1_mjy.csv): flux in mJy converted") {
+	if w := strings.Join(bm.LoadWarnings, "\n"); !strings.Contains(w, "epoch 1 (spectra/epoch1_mjy.csv): flux in mJy converted") {
 		t.Errorf("load warnings %q", bm.LoadWarnings)
 	}
 	bo, err := OpenDataset(context.Background(), path, nil)
@@ -227,8 +227,8 @@ func TestDatasetEpochReadOptions(t *testing.T) {
 		t.Errorf("χ² %v over %d (F_λ file) vs %v over %d (mJy file)", a.Chi2, a.N, c.Chi2, c.N)
 	}
 	for name, c := range map[string]struct{ read, want string }{
-		"unit":        {`{"flux_unit": "furlong"}`, "epochs[1].read.flux_unit"},
-		"medium":      {`{"medium": "water"}`, "epochs[1].read.medium"},
+		"unit":        {`{"flux_unit": "furlong"}`, "epoch 1: read.flux_unit"},
+		"medium":      {`{"medium": "water"}`, "epoch 1: read.medium"},
 		"unknown key": {`{"hdu_number": 1}`, "hdu_number"},
 		"row+merge":   {`{"row": 1, "merge_rows": true}`, "read.row"},
 	} {

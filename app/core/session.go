@@ -3,8 +3,10 @@ package core
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -178,6 +180,23 @@ func (s *Session) Save(path string) error {
 // the old file or the whole new one and a failure leaves the old one. The
 // file keeps the permissions of the one it replaces, or gets 0644.
 func WriteFileAtomic(path string, data []byte) error {
+	if err := writeFileAtomic(path, data); err != nil {
+		// The temporary file's name means nothing to the user: name the
+		// file being written and the system's reason.
+		var pe *fs.PathError
+		var le *os.LinkError
+		switch {
+		case errors.As(err, &pe):
+			err = pe.Err
+		case errors.As(err, &le):
+			err = le.Err
+		}
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	return nil
+}
+
+func writeFileAtomic(path string, data []byte) error {
 	mode := os.FileMode(0o644)
 	if fi, err := os.Stat(path); err == nil && fi.Mode().IsRegular() {
 		mode = fi.Mode().Perm()
@@ -209,10 +228,12 @@ func WriteFileAtomic(path string, data []byte) error {
 // key is never ignored.
 func ReadSession(r io.Reader) (*Session, error) {
 	var s Session
-	dec := json.NewDecoder(io.LimitReader(r, 1<<20))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&s); err != nil {
-		return nil, fmt.Errorf("read session: %w", err)
+	data, err := readBounded(r, maxSessionBytes, "session")
+	if err != nil {
+		return nil, err
+	}
+	if err := DecodeJSON(data, &s); err != nil {
+		return nil, fmt.Errorf("session file: %w", err)
 	}
 	return &s, nil
 }

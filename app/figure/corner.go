@@ -17,7 +17,6 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
-	"gonum.org/v1/plot/vg/vgpdf"
 	"gonum.org/v1/plot/vg/vgsvg"
 )
 
@@ -243,7 +242,7 @@ func (f *CornerFigure) Save(w, h vg.Length, path string) error {
 		f.Draw(draw.New(s))
 		c = s
 	case ".pdf":
-		p := vgpdf.New(w, h)
+		p := newPDF(w, h) // Unicode text and straight alpha: see pdf.go
 		f.Draw(draw.New(p))
 		c = p
 	default:

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -57,7 +58,8 @@ func TestCornerPanels(t *testing.T) {
 // top-left panel (a histogram) and the bottom-left panel (a scatter) hold
 // the samples' blue; and that PNG and SVG files are written.
 func TestCornerImage(t *testing.T) {
-	f, err := Corner([]string{"a", "b", "c"}, cornerSamples(2000), CornerOptions{Title: "invented"})
+	names := []string{"log₁₀ X(Nd)", "v_ph / c", "T_ph / K"}
+	f, err := Corner(names, cornerSamples(2000), CornerOptions{Title: "invented"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -116,6 +118,17 @@ func TestCornerImage(t *testing.T) {
 		case ".pdf":
 			if !bytes.HasPrefix(raw, []byte("%PDF")) {
 				t.Error("PDF file without its header")
+			}
+			// The parameter names, subscripts included, read back
+			// from the PDF by poppler's pdftotext.
+			txt, err := exec.Command(poppler(t, "pdftotext"), "-enc", "UTF-8", p, "-").Output()
+			if err != nil {
+				t.Fatalf("pdftotext: %v", err)
+			}
+			for _, n := range names {
+				if !strings.Contains(string(txt), n) {
+					t.Errorf("corner PDF text lacks %q:\n%s", n, txt)
+				}
 			}
 		}
 	}

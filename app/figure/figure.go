@@ -106,21 +106,18 @@ func (mb *MaskBands) Plot(c draw.Canvas, plt *plot.Plot) {
 
 // Spectrum builds the plot of an observed spectrum and an optional model
 // overlay, vacuum wavelength in unit u. Masked samples are drawn under a
-// shaded band; gaps in the data (removed ranges) stay gaps.
+// shaded band; gaps in the data (removed ranges) stay gaps. The y axis
+// spans the unmasked observed flux and the whole overlay; extra curves are
+// drawn with AddSpectrumCurve, which widens it.
 func Spectrum(obs *spectra.Spectrum, ov *core.Overlay, title string, u core.WaveUnit) (*plot.Plot, error) {
 	p := plot.New()
 	p.Title.Text = title
 	p.Title.Padding = vg.Points(4)
 	p.X.Label.Text = "vacuum wavelength (" + u.Name + ")"
-	p.Y.Label.Text = "flux (erg/s/cm²/Å)"
 	p.Add(plotter.NewGrid())
-	ymax := 0.0
-	for i, f := range obs.Flux {
-		if !obs.Masked(i) && f > ymax && !math.IsInf(f, 0) {
-			ymax = f
-		}
-	}
-	if ymax <= 0 {
+	yr := newYRange()
+	yr.addObserved(obs)
+	if !(yr.hi > 0) {
 		return nil, fmt.Errorf("figure: no unmasked positive flux to show")
 	}
 	p.Add(NewMaskBands(obs, u))
@@ -135,11 +132,30 @@ func Spectrum(obs *spectra.Spectrum, ov *core.Overlay, title string, u core.Wave
 		if err := AddCurve(p, ov.Wavelength, ov.Flux, u, Style{Palette.Model, 1.6, nil}, name); err != nil {
 			return nil, err
 		}
+		yr.add(ov.Flux, nil)
 	}
 	p.Legend.Top = true
-	p.Y.Min = 0
-	p.Y.Max = 1.15 * ymax
+	// Inset the legend so that its line samples are not cut at the
+	// plot's right edge.
+	p.Legend.XOffs = -vg.Points(10)
+	p.Legend.YOffs = -vg.Points(2)
+	yr.apply(p)
 	return p, nil
+}
+
+// AddSpectrumCurve draws x (Å), y on a plot made by Spectrum (see
+// AddCurve) and widens its y axis so that the new curve is not clipped.
+func AddSpectrumCurve(p *plot.Plot, x, y []float64, u core.WaveUnit, st Style, name string) error {
+	if err := AddCurve(p, x, y, u, st, name); err != nil {
+		return err
+	}
+	yr := &yRange{lo: p.Y.Min, hi: p.Y.Max / 1.15}
+	if p.Y.Min < 0 { // undo apply's margin below a negative minimum
+		yr.lo = (p.Y.Min + 0.05*yr.hi) / 1.05
+	}
+	yr.add(y, nil)
+	yr.apply(p)
+	return nil
 }
 
 // AddCurve draws x (Å), y as lines in style st (x in unit u), one per run
@@ -249,6 +265,7 @@ func Sweep(sw *core.Sweep) (*plot.Plot, error) {
 	p.Add(mark)
 	p.Legend.Add("minimum near "+sw.Param.Describe(sw.Best), mark)
 	p.Legend.Top = true
+	p.Legend.XOffs = -vg.Points(10) // the line sample is not cut at the edge
 	p.Y.Min, p.Y.Max = lo/1.5, hi*1.5
 	return p, nil
 }

@@ -3,7 +3,9 @@ package gui
 import (
 	"bytes"
 	"context"
+	"encoding/csv"
 	"encoding/json"
+	stdpng "image/png"
 	"math"
 	"os"
 	"path/filepath"
@@ -16,8 +18,10 @@ import (
 	"fyne.io/fyne/v2/storage"
 	"fyne.io/fyne/v2/test"
 	"fyne.io/fyne/v2/widget"
+	"gonum.org/v1/plot/vg"
 
 	"broadline/app/core"
+	"broadline/app/figure"
 )
 
 // cheapWorkbench is the workbench on the example dataset with its model
@@ -481,5 +485,46 @@ func TestCompositionRows(t *testing.T) {
 	<-ch
 	if want := core.NamedMixes()[2].Composition; wb.sess.MassFractions != want || wb.fractions.Text != want.String() {
 		t.Errorf("named mix: session %q, text %q, want %q", wb.sess.MassFractions, wb.fractions.Text, want)
+	}
+}
+
+// TestExportFeaturesTable: the features table exports as CSV with a row
+// per feature, and after Identify with the elements' share columns; the
+// figure export honours the chosen journal size.
+func TestExportFeaturesTable(t *testing.T) {
+	wb := demoWorkbench(t)
+	dir := t.TempDir()
+	p := filepath.Join(dir, "f.csv")
+	if err := wb.exportFeatures(p); err != nil {
+		t.Fatal(err)
+	}
+	raw, _ := os.ReadFile(p)
+	rows, err := csv.NewReader(strings.NewReader(string(raw))).ReadAll()
+	if err != nil || len(rows) != 1+len(wb.featRows) {
+		t.Fatalf("features CSV: %d rows for %d features (%v)", len(rows), len(wb.featRows), err)
+	}
+	waitJob(t, wb, func() { wb.startIdentify() })
+	if err := wb.exportFeatures(p); err != nil {
+		t.Fatal(err)
+	}
+	raw, _ = os.ReadFile(p)
+	if !strings.Contains(strings.SplitN(string(raw), "\n", 2)[0], "share_Sr") {
+		t.Errorf("after Identify the header lacks share_Sr: %q", strings.SplitN(string(raw), "\n", 2)[0])
+	}
+	waitDone(t, wb)
+	wb.exportSize = figure.Sizes[1].Name
+	png := filepath.Join(dir, "fig.png")
+	if err := wb.exportCurrent(png); err != nil {
+		t.Fatal(err)
+	}
+	f, err := os.Open(png)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	cfg, err := stdpng.DecodeConfig(f)
+	want := int(float64(figure.Sizes[1].Width/vg.Inch)*float64(figure.Sizes[1].DPI) + 0.5)
+	if err != nil || cfg.Width != want {
+		t.Errorf("exported at %q: %d px wide (%v), want %d", figure.Sizes[1].Name, cfg.Width, err, want)
 	}
 }

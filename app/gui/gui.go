@@ -120,6 +120,8 @@ type workbench struct {
 	// savedCands are the candidates as last saved or opened: quitting
 	// with others asks first.
 	savedCands []core.Candidate
+	// exportSize names the figure.Size exports are written at.
+	exportSize string
 	// comp holds the composition's element rows (gui_composition.go).
 	comp compRows
 	// note is a sentence the next model's status line starts with (what
@@ -228,7 +230,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	})
 	keep := widget.NewButton("Keep as candidate", func() {
 		if err := wb.keepCandidate(); err != nil {
-			dialog.ShowError(err, wb.win)
+			wb.showError(err)
 		}
 	})
 	wb.candList = widget.NewList(
@@ -348,10 +350,11 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 		wb.features.SetColumnWidth(c, w)
 	}
 	identify := widget.NewButton("Identify with the model", func() { wb.startIdentify() })
+	exportTable := widget.NewButton("Export table…", func() { wb.exportFeaturesDialog() })
 	note := widget.NewLabel("Absorption minima of the observed spectrum. Which model elements and lines absorb there is a hypothesis (Help ▸ About the model).")
 	note.Wrapping = fyne.TextWrapWord
 	table := widget.NewCard("Features", "", container.NewBorder(
-		container.NewBorder(nil, nil, nil, identify, note), nil, nil, nil, wb.features))
+		container.NewBorder(nil, nil, nil, container.NewHBox(identify, exportTable), note), nil, nil, nil, wb.features))
 
 	right := container.NewVSplit(plot, table)
 	right.Offset = 0.64
@@ -670,7 +673,7 @@ func (wb *workbench) stop() {
 // temporary file renamed over the old one, so a failed save loses nothing).
 func (wb *workbench) saveDialog() {
 	if wb.bench.Unsaved() {
-		dialog.ShowError(errors.New("the dataset has a spectrum added since it was read: save it first (Session ▸ Save dataset…), so that the session can be opened again"), wb.win)
+		wb.showError(errors.New("the dataset has a spectrum added since it was read: save it first (Session ▸ Save dataset…), so that the session can be opened again"))
 		return
 	}
 	path := widget.NewEntry()
@@ -683,7 +686,7 @@ func (wb *workbench) saveDialog() {
 			}
 			wb.confirmOverwrite(path.Text, func() {
 				if err := wb.sess.Save(path.Text); err != nil {
-					dialog.ShowError(err, wb.win)
+					wb.showError(err)
 					return
 				}
 				wb.savedCands = slices.Clone(wb.sess.Candidates)
@@ -702,7 +705,7 @@ func (wb *workbench) openDialog() {
 		func(ok bool) {
 			if ok {
 				if err := wb.openSession(path.Text); err != nil {
-					dialog.ShowError(err, wb.win)
+					wb.showError(err)
 				}
 			}
 		}, wb.win)

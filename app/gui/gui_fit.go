@@ -106,7 +106,7 @@ func (wb *workbench) fitDialog() {
 			}
 			r, err := f.request()
 			if err != nil {
-				dialog.ShowError(err, wb.win)
+				wb.showError(err)
 				return
 			}
 			wb.startFit(r)
@@ -246,7 +246,7 @@ func (wb *workbench) showFit(s *fitShown) {
 		path.SetText(inWorkDir("corner.png"))
 		export := widget.NewButton("Export corner plot", func() {
 			if err := wb.exportCorner(s, path.Text); err != nil {
-				dialog.ShowError(err, wb.win)
+				wb.showError(err)
 			}
 		})
 		content.Add(img)

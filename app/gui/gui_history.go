@@ -146,7 +146,7 @@ func (wb *workbench) startDaily(a fyne.App, dir string) {
 	switch {
 	case err != nil:
 		// Left in place for the analyst; autosave goes on beside it.
-		dialog.ShowError(fmt.Errorf("%w (the file is left as it is; autosave continues)", err), wb.win)
+		wb.showError(fmt.Errorf("%w (the file is left as it is; autosave continues)", err))
 		wb.startAutosave()
 	case rec == nil:
 		wb.startAutosave()
@@ -195,7 +195,7 @@ func (wb *workbench) startAutosave() {
 func (wb *workbench) recover(rec *core.Recovery) {
 	done := func(err error) {
 		if err != nil {
-			dialog.ShowError(err, wb.win)
+			wb.showError(err)
 		}
 		if wb.daily.recoverDone != nil {
 			wb.daily.recoverDone(err)

@@ -168,7 +168,7 @@ func (wb *workbench) addSpectrumDialogFor(file string) {
 		}
 		e, err := f.epoch()
 		if err != nil {
-			dialog.ShowError(err, wb.win)
+			wb.showError(err)
 			return
 		}
 		wb.startAddEpoch(e)
@@ -216,7 +216,7 @@ func (wb *workbench) saveDatasetDialog() {
 			}
 			wb.confirmOverwrite(path.Text, func() {
 				if err := wb.bench.SaveDataset(path.Text); err != nil {
-					dialog.ShowError(err, wb.win)
+					wb.showError(err)
 					return
 				}
 				wb.sess.Dataset = wb.bench.Name

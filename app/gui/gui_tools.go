@@ -15,7 +15,6 @@ import (
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
-	"gonum.org/v1/plot/vg"
 
 	"broadline/app/core"
 	"broadline/app/figure"
@@ -73,7 +72,7 @@ func (wb *workbench) sweepDialog(p core.Param) {
 			hi, err2 := parse(to.Text)
 			n, err3 := strconv.Atoi(strings.TrimSpace(steps.Text))
 			if err := errors.Join(err1, err2, err3); err != nil {
-				dialog.ShowError(err, wb.win)
+				wb.showError(err)
 				return
 			}
 			wb.startSweep(p, lo, hi, n)
@@ -179,7 +178,13 @@ func (wb *workbench) showJobError(err error) {
 		wb.status.SetText("cancelled")
 		return
 	}
-	wb.status.SetText("error: " + err.Error())
+	wb.status.SetText("error: " + core.UserMessage(err))
+}
+
+// showError shows err in a dialog, in the words of core.UserMessage (no
+// package prefixes or temporary file names).
+func (wb *workbench) showError(err error) {
+	dialog.ShowError(errors.New(core.UserMessage(err)), wb.win)
 }
 
 // keepCandidate keeps the current model as a candidate with the next free
@@ -264,11 +269,11 @@ func (wb *workbench) showComparison(shown *figure.Captioned, img image.Image) {
 	export := widget.NewButton("Export", func() {
 		wb.confirmOverwrite(path.Text, func() {
 			if err := wb.exportComparison(path.Text); err != nil {
-				dialog.ShowError(err, wb.win)
+				wb.showError(err)
 			}
 		})
 	})
-	bar := container.NewBorder(nil, nil, widget.NewLabel("File (.png, .svg or .pdf)"), export, path)
+	bar := container.NewBorder(nil, nil, widget.NewLabel("File (.png, .svg or .pdf)"), container.NewHBox(wb.sizeSelect(), export), path)
 	dialog.ShowCustom("Candidate compositions", "Close", container.NewBorder(nil, bar, nil, nil, fig), wb.win)
 }
 
@@ -289,11 +294,26 @@ func (wb *workbench) exportCurrent(path string) error {
 }
 
 func (wb *workbench) export(f *figure.Captioned, path string) error {
-	if err := f.Export(path, 10*vg.Inch, 6*vg.Inch); err != nil {
+	size, _ := figure.SizeNamed(wb.exportSize)
+	if size.Name == "" {
+		size = figure.Sizes[0]
+	}
+	if err := f.ExportSize(path, size); err != nil {
 		return err
 	}
-	wb.status.SetText("figure written to " + path)
+	wb.status.SetText("figure written to " + path + " (" + size.Name + ")")
 	return nil
+}
+
+// sizeSelect chooses the size exports are written at (one or two journal
+// columns, or the screen's), kept for the session's later exports.
+func (wb *workbench) sizeSelect() *widget.Select {
+	sel := widget.NewSelect(figure.SizeNames(), func(v string) { wb.exportSize = v })
+	if wb.exportSize == "" {
+		wb.exportSize = figure.Sizes[0].Name
+	}
+	sel.SetSelected(wb.exportSize)
+	return sel
 }
 
 // exportDialog asks where to write the shown figure.
@@ -303,6 +323,7 @@ func (wb *workbench) exportDialog() {
 	dialog.ShowForm("Export the shown figure", "Export", "Cancel",
 		[]*widget.FormItem{
 			widget.NewFormItem("File", path),
+			widget.NewFormItem("Size", wb.sizeSelect()),
 			widget.NewFormItem("", widget.NewLabel("PNG, SVG or PDF by the extension; the caption gives the model and its cautions.")),
 		},
 		func(ok bool) {
@@ -311,7 +332,7 @@ func (wb *workbench) exportDialog() {
 			}
 			wb.confirmOverwrite(path.Text, func() {
 				if err := wb.exportCurrent(path.Text); err != nil {
-					dialog.ShowError(err, wb.win)
+					wb.showError(err)
 				}
 			})
 		}, wb.win)
@@ -370,7 +391,7 @@ func (wb *workbench) finishReplace(gen int, b *core.Bench, s *core.Session, note
 			wb.jobDone(nil, err)
 		}
 		if !errors.Is(err, context.Canceled) {
-			dialog.ShowError(err, wb.win)
+			wb.showError(err)
 		}
 		return
 	}
@@ -455,4 +476,45 @@ func (wb *workbench) closeIntercept() {
 				quit()
 			}
 		}, wb.win)
+}
+
+// exportFeaturesDialog asks where to write the features table as CSV: the
+// features and, once identified, each element's share (core.FeaturesCSV).
+func (wb *workbench) exportFeaturesDialog() {
+	path := widget.NewEntry()
+	path.SetText(inWorkDir("features.csv"))
+	dialog.ShowForm("Export the features table", "Export", "Cancel",
+		[]*widget.FormItem{
+			widget.NewFormItem("File", path),
+			widget.NewFormItem("", widget.NewLabel("CSV: the absorption minima and, after Identify, each model element's share.")),
+		},
+		func(ok bool) {
+			if ok {
+				wb.confirmOverwrite(path.Text, func() {
+					if err := wb.exportFeatures(path.Text); err != nil {
+						wb.showError(err)
+					}
+				})
+			}
+		}, wb.win)
+}
+
+// exportFeatures writes the features table to path.
+func (wb *workbench) exportFeatures(path string) error {
+	if len(wb.featRows) == 0 {
+		return errors.New("no features in this spectrum to export")
+	}
+	attr := wb.featAttr
+	if attr == nil {
+		attr = make([]*synth.Attribution, len(wb.featRows))
+	}
+	data, err := core.FeaturesCSV(wb.featRows, attr)
+	if err != nil {
+		return err
+	}
+	if err := core.WriteFileAtomic(path, data); err != nil {
+		return err
+	}
+	wb.status.SetText("features table written to " + path)
+	return nil
 }
