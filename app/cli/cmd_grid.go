@@ -267,6 +267,11 @@ func gridInputs(b *core.Bench) (grid.Inputs, error) {
 			return in, err
 		}
 	}
+	for _, l := range b.Data.ImportedLineFiles {
+		if err := add("linelist", resolve(l.File)); err != nil {
+			return in, err
+		}
+	}
 	for _, l := range b.Data.LevelFiles {
 		if err := add("levels", resolve(l)); err != nil {
 			return in, err

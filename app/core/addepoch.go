@@ -1,6 +1,9 @@
 package core
 
 import (
+	"bufio"
+	"compress/gzip"
+	"context"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -10,8 +13,10 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"unicode/utf8"
 
 	"broadline/app/demo"
+	"broadline/linelists"
 	"broadline/spectra"
 )
 
@@ -113,6 +118,12 @@ func (b *Bench) SaveDataset(file string) error {
 			}
 		}
 	}
+	d.ImportedLineFiles = slices.Clone(d.ImportedLineFiles)
+	for i := range d.ImportedLineFiles {
+		if d.ImportedLineFiles[i].File, err = place(d.ImportedLineFiles[i].File, "lines"); err != nil {
+			return fmt.Errorf("save dataset: %w", err)
+		}
+	}
 	for i := range d.Epochs {
 		if d.Epochs[i].File, err = place(d.Epochs[i].File, "spectra"); err != nil {
 			return fmt.Errorf("save dataset: %w", err)
@@ -159,4 +170,164 @@ func SniffJSON(path string) JSONKind {
 		return DatasetFile
 	}
 	return OtherFile
+}
+
+// LineLists are line lists to load in place of (or beside) a dataset's:
+// files in our format, tables read by a column map, and levels files.
+type LineLists struct {
+	Files    []string
+	Imported []ImportedLineFile
+	Levels   []string
+	// Keep keeps the dataset's own lists beside the new ones.
+	Keep bool
+}
+
+// WithLineLists returns a bench whose line lists are l's (with the
+// dataset's own when l.Keep), loaded through the line-list cache with
+// progress, its spectra and ejecta as b's; the new bench's name says it is
+// unsaved. It stops when ctx is done.
+func (b *Bench) WithLineLists(ctx context.Context, l LineLists, progress func(linelists.Progress)) (*Bench, error) {
+	abs := func(names []string) ([]string, error) {
+		out := make([]string, len(names))
+		for i, n := range names {
+			a, err := filepath.Abs(n)
+			if err != nil {
+				return nil, err
+			}
+			out[i] = a
+		}
+		return out, nil
+	}
+	d := *b.Data
+	files, err := abs(l.Files)
+	if err != nil {
+		return nil, err
+	}
+	levels, err := abs(l.Levels)
+	if err != nil {
+		return nil, err
+	}
+	imported := slices.Clone(l.Imported)
+	for i := range imported {
+		if imported[i].File, err = filepath.Abs(imported[i].File); err != nil {
+			return nil, err
+		}
+	}
+	if l.Keep {
+		files = append(b.resolved(d.LineFiles), files...)
+		levels = append(b.resolved(d.LevelFiles), levels...)
+		for _, f := range d.ImportedLineFiles {
+			f.File = b.resolved([]string{f.File})[0]
+			imported = append([]ImportedLineFile{f}, imported...)
+		}
+	}
+	d.LineFiles, d.LevelFiles, d.ImportedLineFiles = files, levels, imported
+	if err := d.Check(); err != nil {
+		return nil, err
+	}
+	var st *linelists.Store
+	var warn []string
+	if strings.TrimPrefix(b.Name, UnsavedPrefix) == DemoName && l.Keep {
+		// The demo's own lists are embedded, not on disk: merge its store.
+		st2, w, err := loadLines(ctx, files[len(b.Data.LineFiles):], imported, func(s string) string { return s }, levels[len(b.Data.LevelFiles):], progress)
+		if err != nil {
+			return nil, err
+		}
+		var rep linelists.Report
+		st, rep = linelists.Merge(b.Store, st2)
+		warn = append(w, rep.Warnings...)
+	} else {
+		st, warn, err = loadLines(ctx, files, imported, func(s string) string { return s }, levels, progress)
+		if err != nil {
+			return nil, err
+		}
+	}
+	name := b.Name
+	if !b.Unsaved() {
+		name = UnsavedPrefix + b.Name
+	}
+	return newBench(name, &d, b.Observed, st, warn), nil
+}
+
+// resolved returns names as absolute paths against the dataset file's
+// directory (the demo's names stay as they are: they are embedded).
+func (b *Bench) resolved(names []string) []string {
+	base := strings.TrimPrefix(b.Name, UnsavedPrefix)
+	out := slices.Clone(names)
+	if base == DemoName {
+		return out
+	}
+	for i, n := range out {
+		if !filepath.IsAbs(n) {
+			out[i] = filepath.Join(filepath.Dir(base), filepath.FromSlash(n))
+		}
+	}
+	return out
+}
+
+// PreviewLineTable reads the first rows of a line table (at most n data
+// rows, with the comment lines before them) and parses them with f's
+// column map, or as our format when f.Columns is empty: the raw text for
+// the analyst to see, the lines read, and the reader's error (file:line,
+// what was expected) when a row does not fit.
+func PreviewLineTable(f ImportedLineFile, n int) (raw string, lines []PreviewLine, err error) {
+	r, err := os.Open(f.File)
+	if err != nil {
+		return "", nil, err
+	}
+	defer r.Close()
+	var rd io.Reader = bufio.NewReader(r)
+	if magic, _ := rd.(*bufio.Reader).Peek(2); len(magic) == 2 && magic[0] == 0x1f && magic[1] == 0x8b {
+		zr, err := gzip.NewReader(rd)
+		if err != nil {
+			return "", nil, fmt.Errorf("%s: gzip: %w", f.File, err)
+		}
+		defer zr.Close()
+		rd = zr
+	}
+	var head strings.Builder
+	sc := bufio.NewScanner(rd)
+	sc.Buffer(make([]byte, 0, 64<<10), 1<<20)
+	rows, want := 0, n
+	if f.HeaderRow {
+		want++ // the header row is not a data row
+	}
+	for rows < want && sc.Scan() {
+		t := sc.Text()
+		if !utf8.ValidString(t) || strings.ContainsRune(t, 0) {
+			return "", nil, fmt.Errorf("%s: not a text table (binary data)", f.File)
+		}
+		head.WriteString(t + "\n")
+		if s := strings.TrimSpace(t); s != "" && !strings.HasPrefix(s, "#") {
+			rows++
+		}
+	}
+	if err := sc.Err(); err != nil {
+		return "", nil, fmt.Errorf("%s: %w", f.File, err)
+	}
+	opt := linelists.ReadOptions{Name: f.File}
+	if f.Columns != "" {
+		if opt.Import, err = f.Import(); err != nil {
+			return head.String(), nil, err
+		}
+	}
+	b := linelists.NewBuilder()
+	if _, err := b.Read(strings.NewReader(head.String()), opt); err != nil {
+		return head.String(), nil, err
+	}
+	st, _ := b.Build()
+	for i := range st.Len() {
+		lines = append(lines, PreviewLine{Wavelength: st.Wavelength[i], Species: st.SpeciesTable[st.Species[i]].String(),
+			LogGF: float64(st.LogGF[i]), LowerEV: st.Levels.Energy[st.Lower[i]]})
+	}
+	return head.String(), lines, nil
+}
+
+// PreviewLine is one line as a preview shows it: vacuum wavelength (Å),
+// species, log gf and lower-level energy (eV).
+type PreviewLine struct {
+	Wavelength float64
+	Species    string
+	LogGF      float64
+	LowerEV    float64
 }

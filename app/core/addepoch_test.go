@@ -90,3 +90,65 @@ func TestSniffJSON(t *testing.T) {
 		t.Error("a missing file is not OtherFile")
 	}
 }
+
+// TestLineListsImportAndPreview: a table in a layout of its own (nm,
+// cm⁻¹, a header row) previews its first rows parsed with the column map
+// (a bad map or a bad row is the reader's file:line error), replaces the
+// demo's lists in a bench, is saved in the dataset as an imported line
+// file, and the dataset reopens with the same store.
+func TestLineListsImportAndPreview(t *testing.T) {
+	b := demoBench(t)
+	dir := t.TempDir()
+	table := filepath.Join(dir, "mine.csv")
+	// Invented lines for the test (not atomic data): Sr II and Ca II.
+	text := "# my table\nlambda_nm,ion,loggf,elow_cm,jlow\n407.8,Sr_II,0.15,0,0.5\n421.6,Sr_II,-0.17,0,0.5\n854.4,Ca_II,-0.36,13710.88,2.5\n"
+	if err := os.WriteFile(table, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	imp := ImportedLineFile{File: table, Columns: "wavelength=lambda_nm:nm,species=ion,log_gf=loggf,lower_energy=elow_cm:cm-1,lower_j=jlow", HeaderRow: true, Medium: "air"}
+	raw, lines, err := PreviewLineTable(imp, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(raw, "407.8") || strings.Contains(raw, "854.4") || len(lines) != 2 || lines[0].Species != "Sr II" || math.Abs(lines[0].Wavelength-4079.0) > 1.5 {
+		t.Errorf("preview: %q, %+v", raw, lines)
+	}
+	bad := imp
+	bad.Columns = "wavelength=lambda_nm:nm,species=ion"
+	if _, _, err := PreviewLineTable(bad, 2); err == nil {
+		t.Error("a column map without log gf previewed")
+	}
+	if err := os.WriteFile(table+".bad", []byte("lambda_nm,ion,loggf,elow_cm,jlow\n407.8,Sr_II,abc,0,0.5\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	bad = imp
+	bad.File = table + ".bad"
+	if _, _, err := PreviewLineTable(bad, 5); err == nil || !strings.Contains(err.Error(), ":2") {
+		t.Errorf("a bad row: %v (want file:line)", err)
+	}
+	nb, err := b.WithLineLists(context.Background(), LineLists{Imported: []ImportedLineFile{imp}}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if nb.Store.Len() != 3 || !nb.Unsaved() || len(nb.Data.LineFiles) != 0 {
+		t.Fatalf("bench with the table: %d lines, unsaved %v, %d line files", nb.Store.Len(), nb.Unsaved(), len(nb.Data.LineFiles))
+	}
+	kept, err := b.WithLineLists(context.Background(), LineLists{Imported: []ImportedLineFile{imp}, Keep: true}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if kept.Store.Len() != b.Store.Len()+3 && kept.Store.Len() != b.Store.Len()+2 {
+		t.Errorf("kept the demo's lists: %d lines, the demo %d", kept.Store.Len(), b.Store.Len())
+	}
+	out := filepath.Join(t.TempDir(), "ds.json")
+	if err := nb.SaveDataset(out); err != nil {
+		t.Fatal(err)
+	}
+	rb, err := OpenDataset(context.Background(), out, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rb.Store.Len() != 3 || len(rb.Data.ImportedLineFiles) != 1 || rb.Data.ImportedLineFiles[0].Columns != imp.Columns {
+		t.Errorf("reopened: %d lines, %+v", rb.Store.Len(), rb.Data.ImportedLineFiles)
+	}
+}

@@ -25,13 +25,16 @@ import (
 // starting values the workbench shows (and Reset returns to). The built-in
 // demo is a Dataset too.
 type Dataset struct {
-	Object         string      `json:"object"`
-	Note           string      `json:"note,omitempty"`
-	DistanceMpc    float64     `json:"distance_mpc"`
-	ResolvingPower float64     `json:"resolving_power"`
-	LineFiles      []string    `json:"line_files"`
-	LevelFiles     []string    `json:"level_files,omitempty"`
-	MassFractions  Composition `json:"mass_fractions"`
+	Object         string   `json:"object"`
+	Note           string   `json:"note,omitempty"`
+	DistanceMpc    float64  `json:"distance_mpc"`
+	ResolvingPower float64  `json:"resolving_power"`
+	LineFiles      []string `json:"line_files"`
+	// ImportedLineFiles are line tables in other layouts, each read with
+	// its column map (as broadline lines --columns).
+	ImportedLineFiles []ImportedLineFile `json:"imported_line_files,omitempty"`
+	LevelFiles        []string           `json:"level_files,omitempty"`
+	MassFractions     Composition        `json:"mass_fractions"`
 	// InnerMassFractions and ZoneBoundary (v/c), when given, start the
 	// models with an inner zone of that composition (see Model).
 	InnerMassFractions Composition `json:"inner_mass_fractions,omitzero"`
@@ -59,6 +62,43 @@ type Epoch struct {
 	// frame before it is compared (as broadline prep does): dereddening,
 	// telluric bands flagged, rest frame. Nil: the file is prepared already.
 	Prepare *Preparation `json:"prepare,omitempty"`
+}
+
+// ImportedLineFile is a line table in a layout of its own, read through a
+// column map: Columns as broadline lines --columns takes it
+// ("wavelength=1:nm,species=2,log_gf=3,lower_energy=4:cm-1,lower_j=5"),
+// HeaderRow when the first row names the columns, Species when every line
+// is of one species (then no species column is needed), Medium "air" or
+// "vacuum" when the file does not say.
+type ImportedLineFile struct {
+	File      string `json:"file"`
+	Columns   string `json:"columns"`
+	HeaderRow bool   `json:"header_row,omitempty"`
+	Species   string `json:"species,omitempty"`
+	Medium    string `json:"medium,omitempty"`
+}
+
+// Import returns the reader's import options of f, or what is wrong.
+func (f ImportedLineFile) Import() (*linelists.Import, error) {
+	if f.File == "" {
+		return nil, fmt.Errorf("file: name the table")
+	}
+	cols, err := linelists.ParseColumnMap(f.Columns)
+	if err != nil {
+		return nil, fmt.Errorf("columns: %w", err)
+	}
+	imp := &linelists.Import{Columns: cols, HeaderRow: f.HeaderRow}
+	if f.Species != "" {
+		if imp.Species, err = linelists.ParseSpecies(f.Species); err != nil {
+			return nil, fmt.Errorf("species: %w", err)
+		}
+	}
+	if f.Medium != "" {
+		if imp.Medium, err = physics.ParseMedium(f.Medium); err != nil {
+			return nil, fmt.Errorf("medium: %w", err)
+		}
+	}
+	return imp, nil
 }
 
 // Preparation is how a spectrum is brought to the model's frame: Milky Way
@@ -228,10 +268,11 @@ func (d *Dataset) Check() error {
 		return fmt.Errorf("distance_mpc %g: want a positive distance in Mpc", d.DistanceMpc)
 	case !(d.ResolvingPower > 0) || d.ResolvingPower > 1e6:
 		return fmt.Errorf("resolving_power %g: want λ/Δλ of the spectra, 0 < R ≤ 1e6", d.ResolvingPower)
-	case len(d.LineFiles) == 0:
+	case len(d.LineFiles)+len(d.ImportedLineFiles) == 0:
 		return fmt.Errorf("line_files: at least one line list is needed")
-	case len(d.LineFiles)+len(d.LevelFiles) > maxDatasetFiles:
-		return fmt.Errorf("line_files, level_files: %d files (at most %d)", len(d.LineFiles)+len(d.LevelFiles), maxDatasetFiles)
+	case len(d.LineFiles)+len(d.ImportedLineFiles)+len(d.LevelFiles) > maxDatasetFiles:
+		return fmt.Errorf("line_files, imported_line_files, level_files: %d files (at most %d)",
+			len(d.LineFiles)+len(d.ImportedLineFiles)+len(d.LevelFiles), maxDatasetFiles)
 	case len(d.Epochs) == 0 || len(d.Epochs) > maxEpochs:
 		return fmt.Errorf("epochs: %d spectra (want 1–%d)", len(d.Epochs), maxEpochs)
 	case !(d.ModelFromUm > 0) || !(d.ModelToUm > d.ModelFromUm) || d.ModelToUm/d.ModelFromUm > 1000:
@@ -241,6 +282,11 @@ func (d *Dataset) Check() error {
 	}
 	if err := d.StartModel(0).ValidateZone(d); err != nil {
 		return fmt.Errorf("inner_mass_fractions, zone_boundary_c: %w", err)
+	}
+	for i, f := range d.ImportedLineFiles {
+		if _, err := f.Import(); err != nil {
+			return fmt.Errorf("imported_line_files %d (%s): %w", i+1, f.File, err)
+		}
 	}
 	for i, e := range d.Epochs {
 		if e.File == "" {
@@ -434,11 +480,42 @@ func OpenDataset(ctx context.Context, path string, progress func(linelists.Progr
 	for _, l := range d.LevelFiles {
 		levels = append(levels, resolve(l))
 	}
-	st, rep, err := linelists.LoadContext(ctx, lines, linelists.Options{Levels: levels, Progress: progress})
+	st, warn, err := loadLines(ctx, lines, d.ImportedLineFiles, resolve, levels, progress)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", abs, err)
 	}
-	return newBench(abs, d, obs, st, append(spWarn, rep.Warnings...)), nil
+	return newBench(abs, d, obs, st, append(spWarn, warn...)), nil
+}
+
+// loadLines loads line lists in our format (lines) and imported tables,
+// each through the line-list cache, with the levels files, into one store.
+func loadLines(ctx context.Context, lines []string, imported []ImportedLineFile, resolve func(string) string, levels []string,
+	progress func(linelists.Progress)) (*linelists.Store, []string, error) {
+	var stores []*linelists.Store
+	var warn []string
+	if len(lines) > 0 {
+		st, rep, err := linelists.LoadContext(ctx, lines, linelists.Options{Levels: levels, Progress: progress})
+		if err != nil {
+			return nil, nil, err
+		}
+		stores, warn, levels = append(stores, st), rep.Warnings, nil
+	}
+	for _, f := range imported {
+		imp, err := f.Import()
+		if err != nil {
+			return nil, nil, fmt.Errorf("%s: %w", f.File, err)
+		}
+		st, rep, err := linelists.LoadContext(ctx, []string{resolve(f.File)}, linelists.Options{Import: imp, Levels: levels, Progress: progress})
+		if err != nil {
+			return nil, nil, err
+		}
+		stores, warn, levels = append(stores, st), append(warn, rep.Warnings...), nil
+	}
+	if len(stores) == 1 {
+		return stores[0], warn, nil
+	}
+	st, rep := linelists.Merge(stores...)
+	return st, append(warn, rep.Warnings...), nil
 }
 
 // WriteExample writes the built-in demo into dir as a dataset of one's

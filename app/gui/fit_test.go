@@ -528,3 +528,40 @@ func TestExportFeaturesTable(t *testing.T) {
 		t.Errorf("exported at %q: %d px wide (%v), want %d", figure.Sizes[1].Name, cfg.Width, err, want)
 	}
 }
+
+// TestOpenLineLists: the form previews a table of one's own through its
+// column map, shows what is wrong with a bad map in the reader's words
+// (no package prefix), and opens the
+// table in place of the dataset's lists, the session kept.
+func TestOpenLineLists(t *testing.T) {
+	wb := cheapWorkbench(t)
+	wb.done = func(*core.Overlay, error) {}
+	table := filepath.Join(t.TempDir(), "mine.csv")
+	// Invented lines for the test (not atomic data).
+	if err := os.WriteFile(table, []byte("lambda_nm,ion,loggf,elow_cm,jlow\n407.8,Sr_II,0.15,0,0.5\n421.6,Sr_II,-0.17,0,0.5\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	f := newLinesForm()
+	if _, err := f.lists(); err == nil {
+		t.Error("no files accepted")
+	}
+	f.files.SetText(table)
+	f.columns.SetText("wavelength=lambda_nm:nm,species=ion")
+	f.header.SetChecked(true)
+	if p := f.previewText(); !strings.Contains(p, "Not read") || strings.Contains(p, "linelists:") {
+		t.Errorf("a column map without log gf previews as %q", p)
+	}
+	f.columns.SetText("wavelength=lambda_nm:nm,species=ion,log_gf=loggf,lower_energy=elow_cm:cm-1,lower_j=jlow")
+	if p := f.previewText(); !strings.Contains(p, "Sr II") || !strings.Contains(p, "407.8") {
+		t.Errorf("preview %q", p)
+	}
+	l, err := f.lists()
+	if err != nil || len(l.Imported) != 1 {
+		t.Fatalf("lists %+v, %v", l, err)
+	}
+	before := wb.sess.Model
+	nw := waitJob(t, wb, func() { wb.startOpenLines(l) }).(*workbench)
+	if nw.bench.Store.Len() != 2 || nw.sess.Model != before || !nw.bench.Unsaved() {
+		t.Errorf("after opening: %d lines, model kept %v, unsaved %v", nw.bench.Store.Len(), nw.sess.Model == before, nw.bench.Unsaved())
+	}
+}

@@ -366,6 +366,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 		fyne.NewMenu("Session",
 			fyne.NewMenuItem("Open dataset…", func() { wb.openDatasetDialog() }),
 			fyne.NewMenuItem("Add a spectrum…", func() { wb.addSpectrumDialog() }),
+			fyne.NewMenuItem("Open line lists…", func() { wb.openLinesDialog() }),
 			fyne.NewMenuItem("Save dataset…", func() { wb.saveDatasetDialog() }),
 			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
