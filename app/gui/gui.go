@@ -680,7 +680,7 @@ func (wb *workbench) saveDialog() {
 	path := widget.NewEntry()
 	path.SetText(inWorkDir("session.json"))
 	dialog.ShowForm("Save session", "Save", "Cancel",
-		[]*widget.FormItem{widget.NewFormItem("File", path)},
+		[]*widget.FormItem{widget.NewFormItem("File", wb.browse(path, true, false))},
 		func(ok bool) {
 			if !ok {
 				return
@@ -702,7 +702,7 @@ func (wb *workbench) openDialog() {
 	path := widget.NewEntry()
 	path.SetText(inWorkDir("session.json"))
 	dialog.ShowForm("Open session", "Open", "Cancel",
-		[]*widget.FormItem{widget.NewFormItem("File", path)},
+		[]*widget.FormItem{widget.NewFormItem("File", wb.browse(path, false, false))},
 		func(ok bool) {
 			if ok {
 				if err := wb.openSession(path.Text); err != nil {

@@ -117,7 +117,7 @@ func (wb *workbench) openLinesDialog() {
 	scroll := container.NewVScroll(preview)
 	scroll.SetMinSize(fyne.NewSize(760, 200))
 	items := []*widget.FormItem{
-		widget.NewFormItem("Line lists", f.files), widget.NewFormItem("Levels files", f.levels),
+		widget.NewFormItem("Line lists", wb.browse(f.files, false, true)), widget.NewFormItem("Levels files", wb.browse(f.levels, false, true)),
 		widget.NewFormItem("Column map", f.columns), widget.NewFormItem("", f.header),
 		widget.NewFormItem("Species", f.species), widget.NewFormItem("Wavelengths in", f.medium),
 		widget.NewFormItem("", f.keep), widget.NewFormItem("", previewBtn), widget.NewFormItem("", scroll),

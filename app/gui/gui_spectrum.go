@@ -3,6 +3,7 @@ package gui
 import (
 	"errors"
 	"fmt"
+	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -153,7 +154,7 @@ func (wb *workbench) addSpectrumDialogFor(file string) {
 	note := widget.NewLabel("The spectrum becomes a new epoch of this dataset, with its line lists, ejecta and distance.\n" +
 		"Leave a field empty to take it from the file. Session ▸ Save dataset… keeps the result as a dataset file.")
 	items := []*widget.FormItem{
-		widget.NewFormItem("File", f.file), widget.NewFormItem("Days since explosion", f.days),
+		widget.NewFormItem("File", wb.browse(f.file, false, false)), widget.NewFormItem("Days since explosion", f.days),
 		widget.NewFormItem("FITS HDU", f.hdu), widget.NewFormItem("Band / row", container.NewGridWithColumns(3, f.band, f.row, f.mergeRows)),
 		widget.NewFormItem("Columns", container.NewGridWithColumns(4, f.waveCol, f.fluxCol, f.uncCol, f.maskCol)),
 		widget.NewFormItem("Units", container.NewGridWithColumns(2, f.waveUnit, f.fluxUnit)),
@@ -207,7 +208,7 @@ func (wb *workbench) saveDatasetDialog() {
 	path.SetText(inWorkDir("dataset.json"))
 	dialog.ShowForm("Save dataset", "Save", "Cancel",
 		[]*widget.FormItem{
-			widget.NewFormItem("Dataset file", path),
+			widget.NewFormItem("Dataset file", wb.browse(path, true, false)),
 			widget.NewFormItem("", widget.NewLabel("The dataset's files are named by absolute paths (the demo's are written beside it).")),
 		},
 		func(ok bool) {
@@ -258,4 +259,41 @@ func (wb *workbench) startOpenSession(path string) {
 		b, s, err := core.OpenSession(ctx, path, nil)
 		fyne.Do(func() { wb.finishReplace(gen, b, s, "", err) })
 	}()
+}
+
+// browse returns entry e with a Browse… button beside it that chooses a
+// file in the toolkit's file dialog and puts its path in e (with save, a
+// folder for the file named in e); with add, a chosen path is added to a
+// comma-separated list instead of replacing it.
+func (wb *workbench) browse(e *widget.Entry, save, add bool) fyne.CanvasObject {
+	set := func(p string) {
+		if add && strings.TrimSpace(e.Text) != "" {
+			p = e.Text + ", " + p
+		}
+		e.SetText(p)
+	}
+	btn := widget.NewButton("Browse…", func() {
+		if save {
+			// A folder, keeping the file name typed: the toolkit's save
+			// dialog would create (or truncate) the file before the form
+			// is confirmed, which must never happen to an existing file.
+			d := dialog.NewFolderOpen(func(u fyne.ListableURI, err error) {
+				if err == nil && u != nil {
+					e.SetText(filepath.Join(u.Path(), filepath.Base(strings.TrimSpace(e.Text))))
+				}
+			}, wb.win)
+			d.Resize(fyne.NewSize(900, 600))
+			d.Show()
+			return
+		}
+		d := dialog.NewFileOpen(func(r fyne.URIReadCloser, err error) {
+			if err == nil && r != nil {
+				r.Close()
+				set(r.URI().Path())
+			}
+		}, wb.win)
+		d.Resize(fyne.NewSize(900, 600))
+		d.Show()
+	})
+	return container.NewBorder(nil, nil, nil, btn, e)
 }

@@ -322,7 +322,7 @@ func (wb *workbench) exportDialog() {
 	path.SetText(inWorkDir("figure.png"))
 	dialog.ShowForm("Export the shown figure", "Export", "Cancel",
 		[]*widget.FormItem{
-			widget.NewFormItem("File", path),
+			widget.NewFormItem("File", wb.browse(path, true, false)),
 			widget.NewFormItem("Size", wb.sizeSelect()),
 			widget.NewFormItem("", widget.NewLabel("PNG, SVG or PDF by the extension; the caption gives the model and its cautions.")),
 		},
@@ -344,7 +344,7 @@ func (wb *workbench) openDatasetDialog() {
 	path.SetText(inWorkDir("dataset.json"))
 	dialog.ShowForm("Open dataset", "Open", "Cancel",
 		[]*widget.FormItem{
-			widget.NewFormItem("Dataset file", path),
+			widget.NewFormItem("Dataset file", wb.browse(path, false, false)),
 			widget.NewFormItem("", widget.NewLabel("A dataset file names your spectra, line lists and the fixed model\nparameters (README, \"Dataset files\"); `broadline example DIR` writes one to start from.")),
 		},
 		func(ok bool) {
@@ -485,7 +485,7 @@ func (wb *workbench) exportFeaturesDialog() {
 	path.SetText(inWorkDir("features.csv"))
 	dialog.ShowForm("Export the features table", "Export", "Cancel",
 		[]*widget.FormItem{
-			widget.NewFormItem("File", path),
+			widget.NewFormItem("File", wb.browse(path, true, false)),
 			widget.NewFormItem("", widget.NewLabel("CSV: the absorption minima and, after Identify, each model element's share.")),
 		},
 		func(ok bool) {
