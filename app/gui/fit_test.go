@@ -565,3 +565,34 @@ func TestOpenLineLists(t *testing.T) {
 		t.Errorf("after opening: %d lines, model kept %v, unsaved %v", nw.bench.Store.Len(), nw.sess.Model == before, nw.bench.Unsaved())
 	}
 }
+
+// TestRecentFilesMenu: saving a session and opening a dataset put them at
+// the top of Session ▸ Open recent; choosing an entry opens it.
+func TestRecentFilesMenu(t *testing.T) {
+	wb := cheapWorkbench(t)
+	wb.done = func(*core.Overlay, error) {}
+	wb.daily.stateDir = t.TempDir()
+	wb.refreshRecent()
+	if items := wb.recentItem.ChildMenu.Items; len(items) != 1 || !items[0].Disabled {
+		t.Fatalf("a fresh list: %v", items)
+	}
+	sess := filepath.Join(t.TempDir(), "s.json")
+	if err := wb.sess.Save(sess); err != nil {
+		t.Fatal(err)
+	}
+	wb.noteRecent(sess, "session")
+	nw := waitJob(t, wb, func() { wb.startOpenDataset(wb.bench.Name) }).(*workbench)
+	items := nw.recentItem.ChildMenu.Items
+	if len(items) != 2 || !strings.Contains(items[0].Label, "dataset: "+nw.bench.Name) || !strings.Contains(items[1].Label, sess) {
+		t.Fatalf("recent items %v", func() (l []string) {
+			for _, i := range items {
+				l = append(l, i.Label)
+			}
+			return
+		}())
+	}
+	nw2 := waitJob(t, nw, func() { items[1].Action() }).(*workbench)
+	if nw2.sess.Dataset != nw.bench.Name {
+		t.Errorf("the recent session opened %q", nw2.sess.Dataset)
+	}
+}

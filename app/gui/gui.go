@@ -120,6 +120,8 @@ type workbench struct {
 	// savedCands are the candidates as last saved or opened: quitting
 	// with others asks first.
 	savedCands []core.Candidate
+	// recentItem is Session ▸ Open recent, its sub-menu the recent files.
+	recentItem *fyne.MenuItem
 	// exportSize names the figure.Size exports are written at.
 	exportSize string
 	// comp holds the composition's element rows (gui_composition.go).
@@ -362,11 +364,14 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	split := container.NewHSplit(model, right)
 	split.Offset = 0.26
 	wb.win.SetContent(split)
+	wb.recentItem = fyne.NewMenuItem("Open recent", nil)
+	wb.recentItem.ChildMenu = fyne.NewMenu("")
 	wb.win.SetMainMenu(fyne.NewMainMenu(
 		fyne.NewMenu("Session",
 			fyne.NewMenuItem("Open dataset…", func() { wb.openDatasetDialog() }),
 			fyne.NewMenuItem("Add a spectrum…", func() { wb.addSpectrumDialog() }),
 			fyne.NewMenuItem("Open line lists…", func() { wb.openLinesDialog() }),
+			wb.recentItem,
 			fyne.NewMenuItem("Save dataset…", func() { wb.saveDatasetDialog() }),
 			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
@@ -692,6 +697,7 @@ func (wb *workbench) saveDialog() {
 				}
 				wb.savedCands = slices.Clone(wb.sess.Candidates)
 				wb.status.SetText("session saved to " + path.Text)
+				wb.noteRecent(path.Text, "session")
 			})
 		}, wb.win)
 }
@@ -724,6 +730,7 @@ func (wb *workbench) openSession(path string) error {
 	wb.updateFeatures()
 	wb.candList.Refresh()
 	wb.recompute()
+	wb.noteRecent(path, "session")
 	return nil
 }
 

@@ -128,6 +128,7 @@ func (wb *workbench) startDaily(a fyne.App, dir string) {
 		dir = d
 	}
 	wb.daily.stateDir = dir
+	wb.refreshRecent()
 	size := fyne.NewSize(1280, 800)
 	if ws, ok, err := core.LoadWindowState(dir); err != nil {
 		wb.status.SetText(err.Error() + " (window state not restored)")

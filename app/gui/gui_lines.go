@@ -162,3 +162,50 @@ func (wb *workbench) startOpenLines(l core.LineLists) {
 		fyne.Do(func() { wb.finishReplace(gen, nb, s, note, err) })
 	}()
 }
+
+// refreshRecent fills Session ▸ Open recent from the recent-files list in
+// the state directory (empty without one).
+func (wb *workbench) refreshRecent() {
+	if wb.recentItem == nil {
+		return
+	}
+	var items []*fyne.MenuItem
+	if dir := wb.daily.stateDir; dir != "" {
+		rs, err := core.LoadRecent(dir)
+		if err != nil {
+			wb.status.SetText(core.UserMessage(err))
+		}
+		for _, r := range rs {
+			r := r
+			items = append(items, fyne.NewMenuItem(r.Kind+": "+r.Path, func() {
+				if r.Kind == "session" {
+					wb.startOpenSession(r.Path)
+				} else {
+					wb.startOpenDataset(r.Path)
+				}
+			}))
+		}
+	}
+	if len(items) == 0 {
+		none := fyne.NewMenuItem("(none yet)", nil)
+		none.Disabled = true
+		items = append(items, none)
+	}
+	wb.recentItem.ChildMenu = fyne.NewMenu("", items...)
+	if mm := wb.win.MainMenu(); mm != nil {
+		mm.Refresh()
+	}
+}
+
+// noteRecent puts path (a "session" or "dataset" file just opened or
+// saved) at the top of the recent files.
+func (wb *workbench) noteRecent(path, kind string) {
+	if wb.daily.stateDir == "" {
+		return
+	}
+	if _, err := core.AddRecent(wb.daily.stateDir, path, kind); err != nil {
+		wb.status.SetText(core.UserMessage(err))
+		return
+	}
+	wb.refreshRecent()
+}

@@ -222,6 +222,7 @@ func (wb *workbench) saveDatasetDialog() {
 				}
 				wb.sess.Dataset = wb.bench.Name
 				wb.status.SetText("dataset saved to " + wb.bench.Name)
+				wb.noteRecent(wb.bench.Name, "dataset")
 			})
 		}, wb.win)
 }
@@ -257,7 +258,14 @@ func (wb *workbench) startOpenSession(path string) {
 	ctx, gen := wb.begin(true, "opening the session "+path+"…")
 	go func() {
 		b, s, err := core.OpenSession(ctx, path, nil)
-		fyne.Do(func() { wb.finishReplace(gen, b, s, "", err) })
+		fyne.Do(func() {
+			if err == nil && wb.daily.stateDir != "" {
+				if _, rerr := core.AddRecent(wb.daily.stateDir, path, "session"); rerr != nil {
+					fyne.LogError("recent files", rerr)
+				}
+			}
+			wb.finishReplace(gen, b, s, "", err)
+		})
 	}()
 }
 

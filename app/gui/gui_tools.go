@@ -401,6 +401,11 @@ func (wb *workbench) finishReplace(gen int, b *core.Bench, s *core.Session, note
 	nw := newWorkbenchIn(wb.win, b, s)
 	nw.done, nw.jobDone, nw.note = wb.done, wb.jobDone, note
 	nw.adoptDaily(wb)
+	if !b.Unsaved() && b.Name != core.DemoName {
+		nw.noteRecent(b.Name, "dataset")
+	} else {
+		nw.refreshRecent()
+	}
 	nw.recompute()
 	if wb.jobDone != nil {
 		wb.jobDone(nw, nil)
