@@ -609,3 +609,49 @@ func (f *Captioned) RenderPlot(w, h int, ax XAxis) (image.Image, Frame) {
 	}
 	return c.Image(), fr
 }
+
+// Extent is the wavelength range (Å) of the scene's observed spectrum.
+func (s *Scene) Extent() (lo, hi float64) {
+	w := s.Observed.Wavelength
+	if len(w) == 0 {
+		return 0, 0
+	}
+	return w[0], w[len(w)-1]
+}
+
+// ZoomAbout scales v's ranges by k (< 1: zoom in) about the wavelength
+// lam (Å) and, when the flux range is fixed, about the flux y; an
+// automatic flux range stays automatic.
+func (v View) ZoomAbout(lam, y, k float64) View {
+	v.XMin, v.XMax = lam+(v.XMin-lam)*k, lam+(v.XMax-lam)*k
+	if !v.AutoY() {
+		v.YMin, v.YMax = y+(v.YMin-y)*k, y+(v.YMax-y)*k
+	}
+	return v
+}
+
+// Pan moves v by dLam Å and, when the flux range is fixed, by dy.
+func (v View) Pan(dLam, dy float64) View {
+	v.XMin, v.XMax = v.XMin+dLam, v.XMax+dLam
+	if !v.AutoY() {
+		v.YMin, v.YMax = v.YMin+dy, v.YMax+dy
+	}
+	return v
+}
+
+// MinViewWidth is the narrowest wavelength range (Å) a view shows.
+const MinViewWidth = 1.0
+
+// Within keeps v on the spectrum [lo, hi] Å: its wavelength range no
+// narrower than MinViewWidth nor wider than three times the spectrum, and
+// its middle on the spectrum. A view without
+// a wavelength range is left as it is.
+func (v View) Within(lo, hi float64) View {
+	if !v.HasX() || !(hi > lo) {
+		return v
+	}
+	w := math.Min(math.Max(v.XMax-v.XMin, MinViewWidth), 3*(hi-lo))
+	mid := math.Min(math.Max((v.XMin+v.XMax)/2, lo), hi)
+	v.XMin, v.XMax = mid-w/2, mid+w/2
+	return v
+}
