@@ -20,8 +20,11 @@ import (
 // Captioned is a figure with the caption lines that go under it, as the
 // export writes it.
 type Captioned struct {
-	Plot    *plot.Plot
-	Caption []string
+	Plot *plot.Plot
+	// Residual, when not nil, is a panel drawn under Plot over the same x
+	// range (see Display.Residuals).
+	Residual *plot.Plot
+	Caption  []string
 }
 
 // Model is the figure of bench b's model m on its epoch's observed
@@ -29,21 +32,7 @@ type Captioned struct {
 // nil, and its caption (the model, the knock-out, the dataset's label and
 // the cautions).
 func Model(b *core.Bench, m core.Model, ov, knock *core.Overlay, z int, u core.WaveUnit) (*Captioned, error) {
-	d := b.Data
-	title := fmt.Sprintf("%s, %g d after explosion", d.Object, d.Epochs[m.Epoch].Days)
-	p, err := Spectrum(b.Observed[m.Epoch], ov, title, u)
-	if err != nil {
-		return nil, err
-	}
-	caption := []string{m.Caption(fmt.Sprintf("model (χ²/N = %.2f)", ov.Reduced()))}
-	if knock != nil {
-		sym := core.ElementSymbol(z)
-		if err := AddSpectrumCurve(p, knock.Wavelength, knock.Flux, u, KnockOutStyle, "model without "+sym); err != nil {
-			return nil, err
-		}
-		caption = append(caption, fmt.Sprintf("Dashed: the same model without the lines of %s (χ²/N = %.2f).", sym, knock.Reduced()))
-	}
-	return &Captioned{Plot: p, Caption: append(caption, d.CaptionTail()...)}, nil
+	return ModelScene(b, m, ov, knock, z).Figure(Display{Axis: XAxis{Unit: u}})
 }
 
 // Comparison is the figure of one epoch's observed spectrum with the
@@ -152,6 +141,9 @@ func (f *Captioned) export(path string, w, h vg.Length, dpi int, scale float64) 
 		}
 	}
 	restore := scaleText(f.Plot, scale)
+	if f.Residual != nil {
+		defer scaleText(f.Residual, scale)()
+	}
 	f.draw(c, scale)
 	restore()
 	var buf bytes.Buffer
@@ -215,7 +207,7 @@ func (f *Captioned) draw(cv vg.CanvasSizer, k float64) {
 	sty := f.captionStyle(k)
 	lines, capH := f.captionLines(dc.Max.X-dc.Min.X, k)
 	line := sty.FontExtents().Height * 1.25
-	f.Plot.Draw(draw.Crop(dc, 0, 0, capH, 0))
+	f.drawPlots(draw.Crop(dc, 0, 0, capH, 0))
 	for i, txt := range lines {
 		dc.FillText(sty, vg.Point{X: dc.Min.X + vg.Points(captionMargin), Y: dc.Min.Y + capH - line*vg.Length(i+1)}, txt)
 	}

@@ -135,6 +135,9 @@ type workbench struct {
 	lastKnock *core.Overlay
 	// attrFor is the model featAttr was made with.
 	attrFor core.Model
+	// plot is the interactive plot: view, axis, panels, ticks, readout
+	// (gui_plot.go).
+	plot plotState
 }
 
 // newWorkbench builds the window in app a for bench b and session s.
@@ -292,8 +295,9 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.figure = canvas.NewImageFromImage(image.NewRGBA(image.Rect(0, 0, 1, 1)))
 	wb.figure.FillMode = canvas.ImageFillContain
 	// Small enough that the divider above the features table moves both
-	// ways at 1280×800; the figure keeps its aspect (ImageFillContain).
-	wb.figure.SetMinSize(fyne.NewSize(480, 120))
+	// ways at 1280×800 (with the plot's row of controls under it); the
+	// figure keeps its aspect (ImageFillContain).
+	wb.figure.SetMinSize(fyne.NewSize(480, 80))
 	knockOpts, knockZ := knockOutChoices(b)
 	wb.knockZ = knockZ
 	wb.knockSel = widget.NewSelect(knockOpts, func(v string) {
@@ -326,7 +330,8 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.unitSel.SetSelected(core.UnitOf(s.WavelengthUnit).Name)
 	knockRow := container.NewBorder(nil, nil, widget.NewLabel("Also draw the model without the lines of"),
 		container.NewHBox(widget.NewLabel("wavelengths in"), wb.unitSel), wb.knockSel)
-	plot := widget.NewCard("Spectrum", "", container.NewBorder(container.NewVBox(banner, knockRow), nil, nil, nil, wb.figure))
+	plotArea, plotBar := wb.newPlotControls() // gui_plot.go
+	plot := widget.NewCard("Spectrum", "", container.NewBorder(container.NewVBox(banner, knockRow), plotBar, nil, nil, plotArea))
 
 	wb.features = widget.NewTableWithHeaders(
 		func() (int, int) { return len(wb.featRows), 6 },
@@ -376,12 +381,13 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 			fyne.NewMenuItem("Open session…", func() { wb.openDialog() }),
 			fyne.NewMenuItem("Save session…", func() { wb.saveDialog() }),
 		),
-		fyne.NewMenu("Figure",
+		fyne.NewMenu("Figure", append([]*fyne.MenuItem{
 			fyne.NewMenuItem("Export the shown figure…", func() { wb.exportDialog() }),
 			fyne.NewMenuItem("Compare candidates and export…", func() { wb.startComparison() }),
-		),
+		}, wb.plotMenuItems()...)...), // and the plot's switches (gui_plot.go)
 		fyne.NewMenu("Help",
 			fyne.NewMenuItem("About the model…", func() { showModelHelp(wb.win) }),
+			fyne.NewMenuItem("Keyboard and mouse…", func() { wb.showShortcuts() }),
 		),
 	))
 	wb.savedCands = slices.Clone(s.Candidates)
@@ -390,6 +396,7 @@ func newWorkbenchIn(win fyne.Window, b *core.Bench, s *core.Session) *workbench 
 	wb.syncControls()
 	wb.updateFeatures()
 	wb.installDaily(split, right)
+	wb.installPlotKeys()
 	return wb
 }
 
@@ -566,23 +573,27 @@ func (wb *workbench) recompute() {
 		wb.featAttr = nil // made for another model
 		wb.features.Refresh()
 	}
-	m, unit := wb.sess.Model, core.UnitOf(wb.sess.WavelengthUnit) // the goroutine works on copies
+	m := wb.sess.Model // the goroutine works on copies
 	without := wb.without
+	disp, species := wb.display(), slices.Clone(wb.plot.species) // gui_plot.go
 	go func() {
 		ov, err := wb.bench.Compute(ctx, m, 0)
 		var knock *core.Overlay
 		if err == nil && without > 0 {
 			knock, err = wb.bench.Compute(ctx, m, without)
 		}
-		var img image.Image
-		var shown *figure.Captioned
+		var ticks []figure.LineTicks
+		var tickErr error
 		if err == nil {
-			shown, err = figure.Model(wb.bench, m, ov, knock, without, unit)
+			ticks, tickErr = lineTicks(ctx, wb.bench, m, species)
 		}
+		var pic *picture
 		if err == nil {
-			img = figure.Render(shown.Plot, 1100, 560)
+			if pic, err = modelPicture(wb.bench, m, ov, knock, without, ticks, disp); err == nil {
+				pic.tickErr = tickErr
+			}
 		}
-		fyne.Do(func() { wb.finish(gen, m, ov, knock, shown, img, err) })
+		fyne.Do(func() { wb.finish(gen, m, ov, knock, pic, err) })
 	}()
 }
 
@@ -631,12 +642,13 @@ func (wb *workbench) showComposition() {
 
 // finish shows a computation's result, unless a newer one has been asked
 // for.
-func (wb *workbench) finish(gen int, s core.Model, ov, knock *core.Overlay, shown *figure.Captioned, img image.Image, err error) {
+func (wb *workbench) finish(gen int, s core.Model, ov, knock *core.Overlay, pic *picture, err error) {
 	if !wb.end(false, gen) {
 		return
 	}
 	if err == nil {
-		wb.current, wb.lastKnock = shown, knock
+		wb.current, wb.lastKnock = pic.shown, knock
+		wb.plotComputed(s, pic) // gui_plot.go
 	}
 	switch {
 	case errors.Is(err, context.Canceled):
@@ -644,7 +656,7 @@ func (wb *workbench) finish(gen int, s core.Model, ov, knock *core.Overlay, show
 	case err != nil:
 		wb.status.SetText("error: " + err.Error())
 	default:
-		wb.figure.Image = img
+		wb.figure.Image = pic.img
 		wb.figure.Refresh()
 		msg := fmt.Sprintf("v_ph = %.3f c, T = %.0f K: χ²/N = %.2f over %d unmasked samples", s.PhotosphereVelocity, s.Temperature, ov.Reduced(), ov.N)
 		if wb.note != "" {

@@ -191,13 +191,42 @@ func (m *Model) Attribute(ctx context.Context, comp opacity.Composition, ej Ejec
 		}
 	}
 	sort.SliceStable(a.Elements, func(i, j int) bool { return a.Elements[i].Share > a.Elements[j].Share })
-	a.Lines = m.strongestLines(s, ej, from, to, nLines, set.Options.Doppler)
+	a.Lines = m.strongestLines(s, ej, from, to, nLines, set.Options.Doppler, nil)
 	return a, nil
 }
 
+// StrongestLines returns, for each species of species, its nLines lines
+// with the largest Sobolev optical depth at the photosphere whose acting
+// wavelength (see LineContribution.Acting) lies in [from, to] Å, by
+// decreasing τ: the lines Attribute lists, without the equivalent widths
+// (one plasma solve, no spectrum). A species without lines there gets
+// none.
+func (m *Model) StrongestLines(ctx context.Context, comp opacity.Composition, ej Ejecta, from, to float64, nLines int, set Settings, species []linelists.Species) ([][]LineContribution, error) {
+	if !(to > from) || from <= 0 {
+		return nil, fmt.Errorf("synth: line window [%g, %g] Å is empty", from, to)
+	}
+	s, err := m.prepare(ctx, comp, ej, set)
+	if err != nil {
+		return nil, err
+	}
+	out := make([][]LineContribution, len(species))
+	for i, sp := range species {
+		if err := ctx.Err(); err != nil {
+			return nil, fmt.Errorf("synth: strongest lines: %w", err)
+		}
+		idx, ok := m.store.SpeciesIndex(sp)
+		if !ok {
+			continue
+		}
+		out[i] = m.strongestLines(s, ej, from, to, nLines, set.Options.Doppler, func(k uint16) bool { return int(k) == idx })
+	}
+	return out, nil
+}
+
 // strongestLines returns the nLines lines with the largest τ at the
-// photosphere whose acting wavelength is in [from, to].
-func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int, d Doppler) []LineContribution {
+// photosphere whose acting wavelength is in [from, to] (only those of the
+// store species k with keep(k), when keep is not nil).
+func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int, d Doppler, keep func(k uint16) bool) []LineContribution {
 	if nLines <= 0 {
 		return nil
 	}
@@ -213,6 +242,9 @@ func (m *Model) strongestLines(s *state, ej Ejecta, from, to float64, nLines int
 	kT := physics.Boltzmann * T / physics.ElectronVolt
 	var top []LineContribution
 	for l := lo; l < hi; l++ {
+		if keep != nil && !keep(st.Species[l]) {
+			continue
+		}
 		f := sf[st.Species[l]]
 		if f == 0 {
 			continue

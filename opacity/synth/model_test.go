@@ -298,3 +298,54 @@ func TestAttribute(t *testing.T) {
 		t.Error("empty window accepted")
 	}
 }
+
+// TestStrongestLines: per species, the lines StrongestLines lists are the
+// ones Attribute lists in the same window (the same τ at the photosphere,
+// by decreasing τ), acting at λ₀(1 − v_ph/c) (the first-order Doppler
+// policy, Jeffery & Branch 1990); a species without lines gets none.
+func TestStrongestLines(t *testing.T) {
+	t.Parallel()
+	st := testStore(t, 2000)
+	m, err := NewModel(st, 5000, 14000, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	comp, _ := opacity.ParseComposition("Ca=0.2,Sr=0.3,Nd=0.5")
+	ej := testEjecta()
+	ctx := context.Background()
+	a, err := m.Attribute(ctx, comp, ej, 6400, 7000, 3, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ca2 := a.Lines[0].Species
+	none := linelists.Species{Z: 1, Charge: 0}
+	got, err := m.StrongestLines(ctx, comp, ej, 6400, 7000, 3, Settings{}, []linelists.Species{ca2, none})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) != 2 || len(got[1]) != 0 {
+		t.Fatalf("got %+v, want Ca II's lines and none for %v", got, none)
+	}
+	var want []LineContribution
+	for _, l := range a.Lines {
+		if l.Species == ca2 {
+			want = append(want, l)
+		}
+	}
+	if len(got[0]) < len(want) {
+		t.Fatalf("Ca II: %d lines, Attribute lists %d", len(got[0]), len(want))
+	}
+	for i, l := range want {
+		if got[0][i] != l {
+			t.Errorf("line %d: %+v, Attribute gives %+v", i, got[0][i], l)
+		}
+	}
+	for i, l := range got[0] {
+		if l.Species != ca2 || !scalar.EqualWithinRel(l.Acting, l.Rest*(1-ej.BetaPh), 1e-12) || (i > 0 && l.TauPhotosphere > got[0][i-1].TauPhotosphere) {
+			t.Errorf("line %d: %+v", i, l)
+		}
+	}
+	if _, err := m.StrongestLines(ctx, comp, ej, 7000, 6400, 3, Settings{}, nil); err == nil {
+		t.Error("empty window accepted")
+	}
+}
