@@ -331,3 +331,19 @@ type PreviewLine struct {
 	LogGF      float64
 	LowerEV    float64
 }
+
+// WithInstrument returns a bench whose dataset has resolving power R (the
+// spectra's, to which the model is smoothed) and distance distMpc (Mpc) in
+// place of b's, for every epoch; its name says it is unsaved.
+func (b *Bench) WithInstrument(R, distMpc float64) (*Bench, error) {
+	d := *b.Data
+	d.ResolvingPower, d.DistanceMpc = R, distMpc
+	if err := d.Check(); err != nil {
+		return nil, err
+	}
+	name := b.Name
+	if !b.Unsaved() {
+		name = UnsavedPrefix + b.Name
+	}
+	return newBench(name, &d, b.Observed, b.Store, b.LoadWarnings), nil
+}

@@ -353,7 +353,7 @@ func TestFeaturesDividerMovesBothWays(t *testing.T) {
 // dataset saves and the session then saves too.
 func TestAddSpectrumForm(t *testing.T) {
 	wb := cheapWorkbench(t)
-	f := newSpectrumForm()
+	f := wb.newSpectrumForm()
 	if _, err := f.epoch(); err == nil || !strings.Contains(err.Error(), "file") {
 		t.Errorf("no file: %v", err)
 	}
@@ -380,8 +380,18 @@ func TestAddSpectrumForm(t *testing.T) {
 	if e.Prepare == nil || e.Prepare.EBV != 0.05 || e.Prepare.Law != "ccm89" || !e.Prepare.MaskTelluric || e.Read == nil || !e.Read.IgnoreMask {
 		t.Fatalf("epoch %+v", e)
 	}
+	if R, d, err := f.instrument(); err != nil || R != wb.bench.Data.ResolvingPower || d != wb.bench.Data.DistanceMpc {
+		t.Errorf("resolving power and distance start at the dataset's: %g %g (%v)", R, d, err)
+	}
+	f.distance.SetText("-3")
+	if _, _, err := f.instrument(); err == nil || !strings.Contains(err.Error(), "distance") {
+		t.Errorf("a distance of -3: %v", err)
+	}
 	comp := wb.sess.MassFractions
-	nw := waitJob(t, wb, func() { wb.startAddEpoch(e) }).(*workbench)
+	nw := waitJob(t, wb, func() { wb.startAddEpochAt(e, wb.bench.Data.ResolvingPower, 70) }).(*workbench)
+	if nw.bench.Data.DistanceMpc != 70 {
+		t.Errorf("distance %g after adding at 70 Mpc", nw.bench.Data.DistanceMpc)
+	}
 	if len(nw.bench.Data.Epochs) != 4 || nw.sess.Epoch != 3 || nw.sess.MassFractions != comp || !nw.bench.Unsaved() {
 		t.Fatalf("after adding: %d epochs, shown %d, unsaved %v", len(nw.bench.Data.Epochs), nw.sess.Epoch, nw.bench.Unsaved())
 	}

@@ -27,6 +27,7 @@ type spectrumForm struct {
 	waveCol, fluxCol, uncCol, maskCol *widget.Entry
 	waveUnit, fluxUnit                *widget.Entry
 	ebv, rv, redshift                 *widget.Entry
+	resolving, distance               *widget.Entry
 	medium, mask, law                 *widget.Select
 	mergeRows, telluric               *widget.Check
 }
@@ -38,7 +39,7 @@ var (
 	lawChoices    = []string{"ccm89", "f99"}
 )
 
-func newSpectrumForm() *spectrumForm {
+func (wb *workbench) newSpectrumForm() *spectrumForm {
 	e := func(hint string) *widget.Entry {
 		w := widget.NewEntry()
 		w.SetPlaceHolder(hint)
@@ -56,7 +57,23 @@ func newSpectrumForm() *spectrumForm {
 	f.medium.SetSelectedIndex(0)
 	f.mask.SetSelectedIndex(0)
 	f.law.SetSelectedIndex(0)
+	f.resolving, f.distance = widget.NewEntry(), widget.NewEntry()
+	f.resolving.SetText(strconv.FormatFloat(wb.bench.Data.ResolvingPower, 'g', -1, 64))
+	f.distance.SetText(strconv.FormatFloat(wb.bench.Data.DistanceMpc, 'g', -1, 64))
 	return f
+}
+
+// instrument reads the resolving power and distance (Mpc) fields.
+func (f *spectrumForm) instrument() (R, dist float64, err error) {
+	R, err1 := strconv.ParseFloat(strings.TrimSpace(f.resolving.Text), 64)
+	dist, err2 := strconv.ParseFloat(strings.TrimSpace(f.distance.Text), 64)
+	if err1 != nil || !(R > 0) {
+		return 0, 0, fmt.Errorf("resolving power %q: want λ/Δλ of the spectra, a number > 0", f.resolving.Text)
+	}
+	if err2 != nil || !(dist > 0) {
+		return 0, 0, fmt.Errorf("distance %q: want the distance in Mpc, a number > 0", f.distance.Text)
+	}
+	return R, dist, nil
 }
 
 // epoch reads the form into a dataset epoch, naming the field at fault.
@@ -149,9 +166,10 @@ func (wb *workbench) addSpectrumDialog() { wb.addSpectrumDialogFor("") }
 
 // addSpectrumDialogFor is addSpectrumDialog with the file filled in.
 func (wb *workbench) addSpectrumDialogFor(file string) {
-	f := newSpectrumForm()
+	f := wb.newSpectrumForm()
 	f.file.SetText(file)
-	note := widget.NewLabel("The spectrum becomes a new epoch of this dataset, with its line lists, ejecta and distance.\n" +
+	note := widget.NewLabel("The spectrum becomes a new epoch of this dataset, with its line lists and ejecta; the resolving\n" +
+		"power and distance apply to every epoch of the dataset.\n" +
 		"Leave a field empty to take it from the file. Session ▸ Save dataset… keeps the result as a dataset file.")
 	items := []*widget.FormItem{
 		widget.NewFormItem("File", wb.browse(f.file, false, false)), widget.NewFormItem("Days since explosion", f.days),
@@ -161,6 +179,7 @@ func (wb *workbench) addSpectrumDialogFor(file string) {
 		widget.NewFormItem("Wavelengths in", f.medium), widget.NewFormItem("Mask", f.mask),
 		widget.NewFormItem("Dereddening", container.NewGridWithColumns(3, f.ebv, f.rv, f.law)),
 		widget.NewFormItem("Telluric bands", f.telluric), widget.NewFormItem("Redshift", f.redshift),
+		widget.NewFormItem("Resolving power, distance (Mpc)", container.NewGridWithColumns(2, f.resolving, f.distance)),
 		widget.NewFormItem("", note),
 	}
 	d := dialog.NewForm("Add a spectrum", "Add", "Cancel", items, func(ok bool) {
@@ -168,11 +187,14 @@ func (wb *workbench) addSpectrumDialogFor(file string) {
 			return
 		}
 		e, err := f.epoch()
-		if err != nil {
-			wb.showError(err)
-			return
+		if err == nil {
+			var R, dist float64
+			if R, dist, err = f.instrument(); err == nil {
+				wb.startAddEpochAt(e, R, dist)
+				return
+			}
 		}
-		wb.startAddEpoch(e)
+		wb.showError(err)
 	}, wb.win)
 	d.Resize(fyne.NewSize(1000, 640))
 	d.Show()
@@ -183,12 +205,21 @@ func (wb *workbench) addSpectrumDialogFor(file string) {
 // composition kept. A file that cannot be read leaves everything as it was
 // and says why.
 func (wb *workbench) startAddEpoch(e core.Epoch) {
+	wb.startAddEpochAt(e, wb.bench.Data.ResolvingPower, wb.bench.Data.DistanceMpc)
+}
+
+// startAddEpochAt is startAddEpoch with the dataset's resolving power and
+// distance (for every epoch) set to R and dist.
+func (wb *workbench) startAddEpochAt(e core.Epoch, R, dist float64) {
 	_, gen := wb.begin(true, "reading "+e.File+"…") // a read is quick: nothing to cancel
 	s := *wb.sess                                   // the goroutine works on copies
 	s.Candidates = append([]core.Candidate(nil), s.Candidates...)
 	old := len(wb.bench.LoadWarnings)
 	go func() {
 		nb, err := wb.bench.WithEpoch(e)
+		if err == nil && (R != nb.Data.ResolvingPower || dist != nb.Data.DistanceMpc) {
+			nb, err = nb.WithInstrument(R, dist)
+		}
 		note := ""
 		if err == nil {
 			s.Dataset = nb.Name
