@@ -181,29 +181,7 @@ func AddCurve(p *plot.Plot, x, y []float64, u core.WaveUnit, st Style, name stri
 // the sampling step jumps by more than five times its median (a removed
 // range) or y is not finite. Runs of fewer than two points are left out.
 func Segments(x, y []float64, u core.WaveUnit) []plotter.XYs {
-	if len(x) != len(y) {
-		panic("figure: Segments: lengths differ")
-	}
-	step := medianStep(x)
-	var out []plotter.XYs
-	var seg plotter.XYs
-	flush := func() {
-		if len(seg) >= 2 {
-			out = append(out, seg)
-		}
-		seg = nil
-	}
-	for i := range x {
-		bad := math.IsNaN(y[i]) || math.IsInf(y[i], 0)
-		if bad || (i > 0 && x[i]-x[i-1] > 5*step) {
-			flush()
-		}
-		if !bad {
-			seg = append(seg, plotter.XY{X: x[i] * u.PerA, Y: y[i]})
-		}
-	}
-	flush()
-	return out
+	return segmentsBy(x, y, func(w float64) float64 { return w * u.PerA })
 }
 
 func medianStep(x []float64) float64 {
